@@ -1,0 +1,292 @@
+import { sql } from "drizzle-orm";
+import { index, integer, primaryKey, real, sqliteTable, text, uniqueIndex } from "drizzle-orm/sqlite-core";
+
+// All times are integer milliseconds since the Unix epoch (UTC). Pressures in bar (gauge), temperatures in °C.
+
+export const sites = sqliteTable("sites", {
+  id: integer("id").primaryKey({ autoIncrement: true }),
+  name: text("name").notNull().unique(),
+  code: text("code").notNull().unique(),
+  timeZone: text("time_zone").notNull(),
+  address: text("address").notNull().default(""),
+  createdAt: integer("created_at").notNull(),
+});
+
+export const users = sqliteTable("users", {
+  id: integer("id").primaryKey({ autoIncrement: true }),
+  email: text("email").notNull().unique(),
+  name: text("name").notNull(),
+  passwordHash: text("password_hash").notNull(),
+  role: text("role", { enum: ["viewer", "supervisor", "technician", "engineer", "manager", "admin"] })
+    .notNull()
+    .default("viewer"),
+  disabled: integer("disabled", { mode: "boolean" }).notNull().default(false),
+  pressureUnit: text("pressure_unit", { enum: ["bar", "psi", "MPa"] }).notNull().default("bar"),
+  temperatureUnit: text("temperature_unit", { enum: ["C", "F"] }).notNull().default("C"),
+  createdAt: integer("created_at").notNull(),
+  updatedAt: integer("updated_at").notNull(),
+});
+
+/** A user with no rows here sees every site. */
+export const userSites = sqliteTable(
+  "user_sites",
+  {
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    siteId: integer("site_id")
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.siteId] })],
+);
+
+/** Server-side record of each signed-in session: gives idle and absolute lifetimes and revocation. */
+export const userSessions = sqliteTable(
+  "user_sessions",
+  {
+    id: text("id").primaryKey(),
+    userId: integer("user_id")
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    createdAt: integer("created_at").notNull(),
+    lastSeenAt: integer("last_seen_at").notNull(),
+    revokedAt: integer("revoked_at"),
+    ip: text("ip").notNull().default(""),
+  },
+  (t) => [index("user_sessions_user_idx").on(t.userId)],
+);
+
+export const compressorModels = sqliteTable("compressor_models", {
+  id: integer("id").primaryKey({ autoIncrement: true }),
+  name: text("name").notNull().unique(),
+  maker: text("maker").notNull().default(""),
+  stages: integer("stages").notNull(),
+  ratedDeliveryLpm: real("rated_delivery_lpm").notNull(),
+  ratedPressureBar: real("rated_pressure_bar").notNull(),
+  createdAt: integer("created_at").notNull(),
+});
+
+export const compressors = sqliteTable(
+  "compressors",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    siteId: integer("site_id")
+      .notNull()
+      .references(() => sites.id),
+    modelId: integer("model_id")
+      .notNull()
+      .references(() => compressorModels.id),
+    name: text("name").notNull(),
+    serial: text("serial").notNull().unique(),
+    deviceId: text("device_id").notNull().unique(),
+    /** Hash of the device's MQTT password; null until an admin issues one. */
+    deviceSecretHash: text("device_secret_hash"),
+    stopPressureBar: real("stop_pressure_bar").notNull(),
+    restartPressureBar: real("restart_pressure_bar").notNull(),
+    bankVolumeL: real("bank_volume_l").notNull().default(0),
+    inService: integer("in_service", { mode: "boolean" }).notNull().default(true),
+    createdAt: integer("created_at").notNull(),
+    updatedAt: integer("updated_at").notNull(),
+  },
+  (t) => [index("compressors_site_idx").on(t.siteId)],
+);
+
+/** One row per telemetry message. Rebuilt WITHOUT ROWID by migration 0001. */
+export const readings = sqliteTable(
+  "readings",
+  {
+    compressorId: integer("compressor_id").notNull(),
+    ts: integer("ts").notNull(),
+    seq: integer("seq").notNull(),
+    deliveryBar: real("delivery_bar"),
+    stage1Bar: real("stage1_bar"),
+    stage2Bar: real("stage2_bar"),
+    stage3Bar: real("stage3_bar"),
+    stage4Bar: real("stage4_bar"),
+    stage1C: real("stage1_c"),
+    stage2C: real("stage2_c"),
+    stage3C: real("stage3_c"),
+    stage4C: real("stage4_c"),
+    oilBar: real("oil_bar"),
+    purifierC: real("purifier_c"),
+    intakeC: real("intake_c"),
+    runState: integer("run_state").notNull(),
+    motorOn: integer("motor_on").notNull(),
+    hourMeterH: real("hour_meter_h"),
+    starts: integer("starts"),
+    tripCode: integer("trip_code"),
+  },
+  (t) => [primaryKey({ columns: [t.compressorId, t.ts] })],
+);
+
+export const auditLog = sqliteTable(
+  "audit_log",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    ts: integer("ts").notNull(),
+    actorUserId: integer("actor_user_id"),
+    actor: text("actor").notNull(),
+    action: text("action").notNull(),
+    targetType: text("target_type"),
+    targetId: text("target_id"),
+    siteId: integer("site_id"),
+    ip: text("ip").notNull().default(""),
+    details: text("details", { mode: "json" }).$type<Record<string, unknown>>(),
+  },
+  (t) => [
+    index("audit_log_ts_idx").on(t.ts),
+    index("audit_log_action_actor_idx").on(t.action, t.actor, t.ts),
+    index("audit_log_action_ip_idx").on(t.action, t.ip, t.ts),
+  ],
+);
+
+export const settings = sqliteTable("settings", {
+  key: text("key").primaryKey(),
+  value: text("value").notNull(),
+  updatedAt: integer("updated_at")
+    .notNull()
+    .default(sql`(unixepoch() * 1000)`),
+});
+
+export type UserRow = typeof users.$inferSelect;
+export type SiteRow = typeof sites.$inferSelect;
+export type CompressorModelRow = typeof compressorModels.$inferSelect;
+export type CompressorRow = typeof compressors.$inferSelect;
+export type ReadingRow = typeof readings.$inferSelect;
+export type AuditRow = typeof auditLog.$inferSelect;
+
+// ---- Telemetry ingestion: rollups, last known state, device events, ingester health ----
+
+/** Rollup columns; a signal's mean is its sum / n (nulls are not counted). */
+function rollupColumns() {
+  return {
+    compressorId: integer("compressor_id").notNull(),
+    /** Start of the bucket, ms (UTC, aligned to the minute or hour). */
+    bucketTs: integer("bucket_ts").notNull(),
+    /** Readings in the bucket. */
+    n: integer("n").notNull().default(0),
+    deliveryBarMin: real("delivery_bar_min"),
+    deliveryBarMax: real("delivery_bar_max"),
+    deliveryBarSum: real("delivery_bar_sum").notNull().default(0),
+    deliveryBarN: integer("delivery_bar_n").notNull().default(0),
+    stage1CMin: real("stage1_c_min"),
+    stage1CMax: real("stage1_c_max"),
+    stage1CSum: real("stage1_c_sum").notNull().default(0),
+    stage1CN: integer("stage1_c_n").notNull().default(0),
+    stage2CMin: real("stage2_c_min"),
+    stage2CMax: real("stage2_c_max"),
+    stage2CSum: real("stage2_c_sum").notNull().default(0),
+    stage2CN: integer("stage2_c_n").notNull().default(0),
+    stage3CMin: real("stage3_c_min"),
+    stage3CMax: real("stage3_c_max"),
+    stage3CSum: real("stage3_c_sum").notNull().default(0),
+    stage3CN: integer("stage3_c_n").notNull().default(0),
+    stage4CMin: real("stage4_c_min"),
+    stage4CMax: real("stage4_c_max"),
+    stage4CSum: real("stage4_c_sum").notNull().default(0),
+    stage4CN: integer("stage4_c_n").notNull().default(0),
+    oilBarMin: real("oil_bar_min"),
+    oilBarMax: real("oil_bar_max"),
+    oilBarSum: real("oil_bar_sum").notNull().default(0),
+    oilBarN: integer("oil_bar_n").notNull().default(0),
+    purifierCMin: real("purifier_c_min"),
+    purifierCMax: real("purifier_c_max"),
+    purifierCSum: real("purifier_c_sum").notNull().default(0),
+    purifierCN: integer("purifier_c_n").notNull().default(0),
+    intakeCMin: real("intake_c_min"),
+    intakeCMax: real("intake_c_max"),
+    intakeCSum: real("intake_c_sum").notNull().default(0),
+    intakeCN: integer("intake_c_n").notNull().default(0),
+    /** Seconds of the bucket covered by readings (gaps longer than the store's max gap are not counted). */
+    coveredS: real("covered_s").notNull().default(0),
+    /** Seconds with the motor on. */
+    runS: real("run_s").notNull().default(0),
+    /** Seconds in the tripped state. */
+    trippedS: real("tripped_s").notNull().default(0),
+    /** Device time of the latest reading in the bucket, and its hour meter, starts and state. */
+    lastTs: integer("last_ts"),
+    hourMeterH: real("hour_meter_h"),
+    starts: integer("starts"),
+    lastRunState: integer("last_run_state"),
+    lastMotorOn: integer("last_motor_on"),
+  };
+}
+
+export const readings1m = sqliteTable("readings_1m", rollupColumns(), (t) => [
+  primaryKey({ columns: [t.compressorId, t.bucketTs] }),
+]);
+
+export const readings1h = sqliteTable("readings_1h", rollupColumns(), (t) => [
+  primaryKey({ columns: [t.compressorId, t.bucketTs] }),
+]);
+
+/** Last known values and comms state of each compressor, written by the ingester. */
+export const compressorState = sqliteTable("compressor_state", {
+  compressorId: integer("compressor_id").primaryKey(),
+  online: integer("online", { mode: "boolean" }).notNull().default(false),
+  /** Server time any valid message last arrived from the device. */
+  lastSeenAt: integer("last_seen_at"),
+  /** Server time the last reading arrived. */
+  receivedAt: integer("received_at"),
+  /** Device time of the last reading. */
+  ts: integer("ts"),
+  seq: integer("seq"),
+  runState: integer("run_state"),
+  motorOn: integer("motor_on"),
+  deliveryBar: real("delivery_bar"),
+  stage1Bar: real("stage1_bar"),
+  stage2Bar: real("stage2_bar"),
+  stage3Bar: real("stage3_bar"),
+  stage4Bar: real("stage4_bar"),
+  stage1C: real("stage1_c"),
+  stage2C: real("stage2_c"),
+  stage3C: real("stage3_c"),
+  stage4C: real("stage4_c"),
+  oilBar: real("oil_bar"),
+  purifierC: real("purifier_c"),
+  intakeC: real("intake_c"),
+  hourMeterH: real("hour_meter_h"),
+  starts: integer("starts"),
+  tripCode: integer("trip_code"),
+  fillRateBarPerMin: real("fill_rate_bar_per_min"),
+  updatedAt: integer("updated_at").notNull(),
+});
+
+/** Comms loss/restore detected by the ingester, and state changes and trips reported by the machine. */
+export const deviceEvents = sqliteTable(
+  "device_events",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    ts: integer("ts").notNull(),
+    compressorId: integer("compressor_id").notNull(),
+    kind: text("kind", { enum: ["comms_lost", "comms_restored", "state", "trip"] }).notNull(),
+    runState: text("run_state", { enum: ["stopped", "standby", "starting", "running", "tripped"] }),
+    tripCode: integer("trip_code"),
+    text: text("text").notNull().default(""),
+    /** Server time the event was recorded. */
+    receivedAt: integer("received_at").notNull(),
+  },
+  (t) => [
+    uniqueIndex("device_events_dedupe_idx").on(t.compressorId, t.ts, t.kind),
+    index("device_events_ts_idx").on(t.ts),
+  ],
+);
+
+/** Health counters of the background services (one row per component: "ingester", "broker"). */
+export const ingesterStatus = sqliteTable("ingester_status", {
+  component: text("component").primaryKey(),
+  pid: integer("pid").notNull(),
+  startedAt: integer("started_at").notNull(),
+  updatedAt: integer("updated_at").notNull(),
+  connected: integer("connected", { mode: "boolean" }).notNull().default(false),
+  messagesPerS: real("messages_per_s").notNull().default(0),
+  wsClients: integer("ws_clients").notNull().default(0),
+  lastFlushAt: integer("last_flush_at"),
+  counters: text("counters", { mode: "json" }).$type<Record<string, number>>().notNull(),
+});
+
+export type ReadingRollupRow = typeof readings1m.$inferSelect;
+export type CompressorStateRow = typeof compressorState.$inferSelect;
+export type DeviceEventRow = typeof deviceEvents.$inferSelect;
+export type IngesterStatusRow = typeof ingesterStatus.$inferSelect;

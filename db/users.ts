@@ -1,0 +1,124 @@
+import { and, asc, eq, inArray } from "drizzle-orm";
+import type { Role } from "@/shared/roles";
+import type { UnitPreference } from "@/shared/units";
+import type { UserDto } from "@/shared/user-schema";
+import type { Db } from "./client";
+import { users, userSites, type UserRow } from "./schema";
+
+
+export function findUserByEmail(db: Db, email: string): UserRow | null {
+  return db.select().from(users).where(eq(users.email, email.toLowerCase())).get() ?? null;
+}
+
+export function findUserById(db: Db, id: number): UserRow | null {
+  return db.select().from(users).where(eq(users.id, id)).get() ?? null;
+}
+
+export function siteIdsOfUser(db: Db, userId: number): number[] {
+  return db
+    .select({ siteId: userSites.siteId })
+    .from(userSites)
+    .where(eq(userSites.userId, userId))
+    .all()
+    .map((r) => r.siteId);
+}
+
+function toDto(u: UserRow, siteIds: number[]): UserDto {
+  return {
+    id: u.id,
+    email: u.email,
+    name: u.name,
+    role: u.role,
+    disabled: u.disabled,
+    siteIds,
+    pressureUnit: u.pressureUnit,
+    temperatureUnit: u.temperatureUnit,
+    createdAt: u.createdAt,
+  };
+}
+
+export function listUsers(db: Db): UserDto[] {
+  const rows = db.select().from(users).orderBy(asc(users.email)).all();
+  const scopes = new Map<number, number[]>();
+  for (const s of db.select().from(userSites).all()) {
+    scopes.set(s.userId, [...(scopes.get(s.userId) ?? []), s.siteId]);
+  }
+  return rows.map((u) => toDto(u, scopes.get(u.id) ?? []));
+}
+
+export function getUserDto(db: Db, id: number): UserDto | null {
+  const u = findUserById(db, id);
+  return u ? toDto(u, siteIdsOfUser(db, id)) : null;
+}
+
+export type NewUser = { email: string; name: string; role: Role; passwordHash: string; siteIds: number[] };
+
+export function createUser(db: Db, input: NewUser, now = Date.now()): UserDto {
+  return db.transaction((tx) => {
+    const row = tx
+      .insert(users)
+      .values({
+        email: input.email.toLowerCase(),
+        name: input.name,
+        role: input.role,
+        passwordHash: input.passwordHash,
+        createdAt: now,
+        updatedAt: now,
+      })
+      .returning()
+      .get();
+    if (input.siteIds.length) {
+      tx.insert(userSites)
+        .values(input.siteIds.map((siteId) => ({ userId: row.id, siteId })))
+        .run();
+    }
+    return toDto(row, input.siteIds);
+  });
+}
+
+export function updateUserAccess(
+  db: Db,
+  input: { id: number; role: Role; siteIds: number[]; disabled: boolean },
+  now = Date.now(),
+): UserDto | null {
+  return db.transaction((tx) => {
+    const row = tx
+      .update(users)
+      .set({ role: input.role, disabled: input.disabled, updatedAt: now })
+      .where(eq(users.id, input.id))
+      .returning()
+      .get();
+    if (!row) return null;
+    tx.delete(userSites).where(eq(userSites.userId, input.id)).run();
+    if (input.siteIds.length) {
+      tx.insert(userSites)
+        .values(input.siteIds.map((siteId) => ({ userId: input.id, siteId })))
+        .run();
+    }
+    return toDto(row, input.siteIds);
+  });
+}
+
+export function setUserUnits(db: Db, id: number, units: UnitPreference, now = Date.now()): void {
+  db.update(users)
+    .set({ pressureUnit: units.pressureUnit, temperatureUnit: units.temperatureUnit, updatedAt: now })
+    .where(eq(users.id, id))
+    .run();
+}
+
+export function setUserPassword(db: Db, id: number, passwordHash: string, now = Date.now()): void {
+  db.update(users).set({ passwordHash, updatedAt: now }).where(eq(users.id, id)).run();
+}
+
+export function countAdmins(db: Db): number {
+  return db.select({ id: users.id }).from(users).where(inArray(users.role, ["admin"])).all().length;
+}
+
+/** Administrators who can still sign in; the last one may not be demoted or disabled. */
+export function countEnabledAdmins(db: Db): number {
+  return db
+    .select({ id: users.id })
+    .from(users)
+    .where(and(eq(users.role, "admin"), eq(users.disabled, false)))
+    .all().length;
+}

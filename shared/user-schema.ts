@@ -1,0 +1,48 @@
+import { z } from "zod";
+import { roleSchema } from "./roles";
+import { unitPreferenceSchema } from "./units";
+
+export const emailSchema = z.string().trim().toLowerCase().pipe(z.email("Enter a valid e-mail address").max(254));
+export const passwordSchema = z
+  .string()
+  .min(10, "At least 10 characters")
+  .max(200, "At most 200 characters");
+
+export const signInSchema = z.object({
+  email: emailSchema,
+  password: z.string().min(1, "Enter your password").max(200),
+});
+export type SignInInput = z.infer<typeof signInSchema>;
+
+const siteIdsSchema = z.array(z.coerce.number().int().positive()).max(500);
+
+export const userInviteSchema = z.object({
+  email: emailSchema,
+  name: z.string().trim().min(1, "Enter a name").max(120),
+  role: roleSchema,
+  siteIds: siteIdsSchema,
+  password: passwordSchema,
+});
+export type UserInvite = z.infer<typeof userInviteSchema>;
+
+export const userUpdateSchema = z.object({
+  id: z.number().int().positive(),
+  role: roleSchema,
+  siteIds: siteIdsSchema,
+  disabled: z.boolean(),
+});
+export type UserUpdate = z.infer<typeof userUpdateSchema>;
+
+export const unitPreferenceUpdateSchema = unitPreferenceSchema;
+
+export type UserDto = {
+  id: number;
+  email: string;
+  name: string;
+  role: z.infer<typeof roleSchema>;
+  disabled: boolean;
+  siteIds: number[];
+  pressureUnit: z.infer<typeof unitPreferenceSchema>["pressureUnit"];
+  temperatureUnit: z.infer<typeof unitPreferenceSchema>["temperatureUnit"];
+  createdAt: number;
+};
