@@ -1,23 +1,11 @@
 import { getServerSession } from "next-auth";
 import { forbidden, redirect } from "next/navigation";
 import { getDb } from "@/db/client";
-import { findSession, touchSession } from "@/db/sessions";
-import { findUserById, siteIdsOfUser } from "@/db/users";
-import { can, denialReason, type Permission, type Role } from "@/shared/roles";
-import type { UnitPreference } from "@/shared/units";
+import { can, denialReason, type Permission } from "@/shared/roles";
 import { authOptions } from "./options";
-import { sessionPolicy } from "./policy";
+import { resolveSession, type CurrentUser } from "./session-check";
 
-export type CurrentUser = {
-  id: number;
-  email: string;
-  name: string;
-  role: Role;
-  /** null: every site. */
-  siteIds: number[] | null;
-  units: UnitPreference;
-  sessionId: string;
-};
+export type { CurrentUser };
 
 export class AccessError extends Error {
   constructor(
@@ -28,31 +16,10 @@ export class AccessError extends Error {
   }
 }
 
-const TOUCH_EVERY_MS = 60_000;
-
-/** The signed-in person, checked against the database on every call: disabled, revoked or expired sessions are refused. */
+/** The signed-in person, checked against the database on every call. */
 export async function currentUser(): Promise<CurrentUser | null> {
   const session = await getServerSession(authOptions);
-  if (!session?.uid || !session.sid) return null;
-  const db = getDb();
-  const row = findSession(db, session.sid);
-  const now = Date.now();
-  const { idleMs, absoluteMs } = sessionPolicy();
-  if (!row || row.userId !== session.uid || row.revokedAt != null) return null;
-  if (now - row.lastSeenAt > idleMs || now - row.createdAt > absoluteMs) return null;
-  const user = findUserById(db, row.userId);
-  if (!user || user.disabled) return null;
-  if (now - row.lastSeenAt > TOUCH_EVERY_MS) touchSession(db, row.id, now);
-  const siteIds = siteIdsOfUser(db, user.id);
-  return {
-    id: user.id,
-    email: user.email,
-    name: user.name,
-    role: user.role,
-    siteIds: siteIds.length ? siteIds : null,
-    units: { pressureUnit: user.pressureUnit, temperatureUnit: user.temperatureUnit },
-    sessionId: row.id,
-  };
+  return session ? resolveSession(getDb(), { uid: session.uid, sid: session.sid }) : null;
 }
 
 export async function requireUser(): Promise<CurrentUser> {
