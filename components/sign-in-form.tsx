@@ -48,7 +48,7 @@ export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
         />
       </label>
       {error && (
-        <p role="alert" className="rounded border border-critical bg-critical-soft px-2 py-1.5 text-sm text-ink">
+        <p role="alert" data-testid="sign-in-error" className="rounded border border-critical bg-critical-soft px-2 py-1.5 text-sm text-ink">
           {error}
         </p>
       )}

@@ -33,7 +33,7 @@ test("a wrong password shows the error and does not sign in", async ({ page }) =
   await page.getByLabel("E-mail").fill("technician@airkeep.demo");
   await page.getByLabel("Password").fill("not-the-password");
   await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("alert")).toHaveText("Wrong e-mail address or password.");
+  await expect(page.getByTestId("sign-in-error")).toHaveText("Wrong e-mail address or password.");
   await expect(page).toHaveURL(/\/login/);
   const res = await page.request.get("/api/sites");
   expect(res.status()).toBe(401);
@@ -94,18 +94,19 @@ test("a disabled account's open session is refused at its next request", async (
   await signIn(admin, "admin");
   await admin.goto("/admin/users");
   const row = admin.getByRole("row").filter({ hasText: "manager@airkeep.demo" });
-  await row.getByRole("button", { name: /disable/i }).click();
-  await expect(row).toContainText(/disabled/i);
+  await row.getByRole("button", { name: "Disable manager@airkeep.demo" }).click();
+  await row.getByRole("button", { name: /Confirm: disable manager@airkeep.demo/ }).click();
+  await expect(row).toContainText("Disabled");
 
   expect((await page.request.get("/api/sites")).status()).toBe(401);
   await page.goto("/login");
   await page.getByLabel("E-mail").fill("manager@airkeep.demo");
   await page.getByLabel("Password").fill(DEMO_PASSWORD);
   await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByRole("alert")).toContainText("disabled");
+  await expect(page.getByTestId("sign-in-error")).toContainText("disabled");
 
-  await row.getByRole("button", { name: /enable/i }).click();
-  await expect(row).not.toContainText(/disabled/i);
+  await row.getByRole("button", { name: "Enable manager@airkeep.demo" }).click();
+  await expect(row).not.toContainText("Disabled");
   await admin.close();
 });
 
