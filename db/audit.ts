@@ -1,5 +1,6 @@
 import { and, count, eq, gte } from "drizzle-orm";
 import type { Db } from "./client";
+import { appendEvent } from "./events";
 import { auditLog } from "./schema";
 
 export type AuditEntry = {
@@ -13,7 +14,32 @@ export type AuditEntry = {
   details?: Record<string, unknown>;
 };
 
+const auditSentences: Record<string, (e: AuditEntry) => string> = {
+  "auth.sign_in": (e) => `${e.actor} signed in`,
+  "auth.sign_in_failed": (e) => `Failed sign-in for ${e.actor} (${String(e.details?.reason ?? "wrong password")})`,
+  "auth.sign_in_throttled": (e) => `Sign-in for ${e.actor} refused: too many failures`,
+  "auth.sign_out": (e) => `${e.actor} signed out`,
+};
+
+function describe(e: AuditEntry): string {
+  const sentence = auditSentences[e.action];
+  if (sentence) return sentence(e);
+  const target = e.targetType ? ` ${e.targetType.replace(/_/g, " ")}${e.targetId != null ? ` ${e.targetId}` : ""}` : "";
+  const label = typeof e.details?.label === "string" ? ` “${e.details.label}”` : "";
+  return `${e.actor}: ${e.action.replace(/[._]/g, " ")}${target}${label}`;
+}
+
+/** Writes the audit row and its entry in the searchable event log. */
 export function writeAudit(db: Db, entry: AuditEntry, ts = Date.now()): void {
+  appendEvent(db, {
+    ts,
+    kind: entry.action.startsWith("auth.") ? "auth" : entry.action.startsWith("threshold") ? "threshold" : "config",
+    action: entry.action,
+    text: describe(entry),
+    siteId: entry.siteId ?? null,
+    actor: entry.actor,
+    details: entry.details ?? null,
+  });
   db.insert(auditLog)
     .values({
       ts,

@@ -290,3 +290,142 @@ export type ReadingRollupRow = typeof readings1m.$inferSelect;
 export type CompressorStateRow = typeof compressorState.$inferSelect;
 export type DeviceEventRow = typeof deviceEvents.$inferSelect;
 export type IngesterStatusRow = typeof ingesterStatus.$inferSelect;
+
+// ---- Display links: revocable, unattended wall-screen access to the board ----
+
+/** A wall screen's link to the read-only board. Only a SHA-256 hash of the link token is stored. */
+export const displayLinks = sqliteTable("display_links", {
+  id: integer("id").primaryKey({ autoIncrement: true }),
+  tokenHash: text("token_hash").notNull().unique(),
+  label: text("label").notNull(),
+  /** Sites the screen shows; null means every site. */
+  siteIds: text("site_ids", { mode: "json" }).$type<number[]>(),
+  createdBy: integer("created_by")
+    .notNull()
+    .references(() => users.id),
+  createdAt: integer("created_at").notNull(),
+  revokedAt: integer("revoked_at"),
+  lastUsedAt: integer("last_used_at"),
+});
+
+export type DisplayLinkRow = typeof displayLinks.$inferSelect;
+
+// ---- Thresholds: limits per compressor model (the template) with per-compressor overrides ----
+
+export const thresholdLimits = sqliteTable(
+  "threshold_limits",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    scopeType: text("scope_type", { enum: ["model", "compressor"] }).notNull(),
+    scopeId: integer("scope_id").notNull(),
+    signal: text("signal").notNull(),
+    direction: text("direction", { enum: ["high", "low"] }).notNull(),
+    priority: text("priority", { enum: ["critical", "warning", "advisory"] }).notNull(),
+    /** Stored in bar or °C. */
+    value: real("value").notNull(),
+    deadband: real("deadband").notNull().default(0),
+    onDelayS: real("on_delay_s").notNull().default(0),
+    offDelayS: real("off_delay_s").notNull().default(0),
+    /** A compressor override with enabled = false switches an inherited limit off. */
+    enabled: integer("enabled", { mode: "boolean" }).notNull().default(true),
+    updatedAt: integer("updated_at").notNull(),
+    updatedBy: integer("updated_by"),
+  },
+  (t) => [uniqueIndex("threshold_limits_key_idx").on(t.scopeType, t.scopeId, t.signal, t.direction, t.priority)],
+);
+
+/** One version counter per threshold set, for the optimistic check on save. */
+export const thresholdSets = sqliteTable(
+  "threshold_sets",
+  {
+    scopeType: text("scope_type", { enum: ["model", "compressor"] }).notNull(),
+    scopeId: integer("scope_id").notNull(),
+    version: integer("version").notNull().default(0),
+    updatedAt: integer("updated_at").notNull(),
+    updatedBy: integer("updated_by"),
+  },
+  (t) => [primaryKey({ columns: [t.scopeType, t.scopeId] })],
+);
+
+// ---- Alarms: one row per occurrence, from raise until it returns to normal; kept afterwards as history ----
+
+export const alarms = sqliteTable(
+  "alarms",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    compressorId: integer("compressor_id").notNull(),
+    siteId: integer("site_id").notNull(),
+    /** Limit key (signal.direction.priority), "trip" or "comms". */
+    key: text("key").notNull(),
+    priority: text("priority", { enum: ["critical", "warning", "advisory"] }).notNull(),
+    signal: text("signal"),
+    state: text("state", {
+      enum: [
+        "normal",
+        "active-unacknowledged",
+        "active-acknowledged",
+        "cleared-unacknowledged",
+        "shelved",
+        "suppressed",
+        "out-of-service",
+      ],
+    }).notNull(),
+    /** Whether the condition is present now, whatever the state. */
+    active: integer("active", { mode: "boolean" }).notNull(),
+    raisedAt: integer("raised_at").notNull(),
+    clearedAt: integer("cleared_at"),
+    value: real("value"),
+    limitValue: real("limit_value"),
+    tripCode: integer("trip_code"),
+    chattering: integer("chattering", { mode: "boolean" }).notNull().default(false),
+    ackAt: integer("ack_at"),
+    ackBy: integer("ack_by"),
+    ackComment: text("ack_comment"),
+    shelvedUntil: integer("shelved_until"),
+    shelvedBy: integer("shelved_by"),
+    shelveComment: text("shelve_comment"),
+    outOfServiceReason: text("out_of_service_reason"),
+    notifiedAt: integer("notified_at"),
+    escalationLevel: integer("escalation_level").notNull().default(0),
+    reAlarmedAt: integer("re_alarmed_at"),
+    updatedAt: integer("updated_at").notNull(),
+  },
+  (t) => [
+    uniqueIndex("alarms_open_idx").on(t.compressorId, t.key).where(sql`state <> 'normal'`),
+    index("alarms_state_idx").on(t.state, t.priority),
+    index("alarms_compressor_idx").on(t.compressorId, t.raisedAt),
+    index("alarms_site_idx").on(t.siteId, t.raisedAt),
+  ],
+);
+
+// ---- Event log: every alarm transition, trip, acknowledgement, comms loss, change and sign-in, searchable (FTS5) ----
+
+export const events = sqliteTable(
+  "events",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    ts: integer("ts").notNull(),
+    /** alarm, trip, acknowledge, shelve, comms, state, threshold, config, auth, service, air-test, mail */
+    kind: text("kind").notNull(),
+    /** Dotted verb, e.g. alarm.raise, alarm.acknowledge, auth.sign_in_failed. */
+    action: text("action").notNull(),
+    priority: text("priority", { enum: ["critical", "warning", "advisory"] }),
+    siteId: integer("site_id"),
+    compressorId: integer("compressor_id"),
+    alarmId: integer("alarm_id"),
+    actor: text("actor").notNull().default(""),
+    /** The sentence people read and search. */
+    text: text("text").notNull(),
+    details: text("details", { mode: "json" }).$type<Record<string, unknown>>(),
+  },
+  (t) => [
+    index("events_ts_idx").on(t.ts),
+    index("events_site_ts_idx").on(t.siteId, t.ts),
+    index("events_compressor_ts_idx").on(t.compressorId, t.ts),
+    index("events_kind_ts_idx").on(t.kind, t.ts),
+  ],
+);
+
+export type ThresholdLimitRow = typeof thresholdLimits.$inferSelect;
+export type AlarmRow = typeof alarms.$inferSelect;
+export type EventRow = typeof events.$inferSelect;
