@@ -1,6 +1,7 @@
 import fs from "node:fs";
 import path from "node:path";
 import { getDb } from "@/db/client";
+import { getBrokerStatus, getIngesterStatus, type ServiceStatus } from "@/db/telemetry-state";
 
 const version: string = JSON.parse(fs.readFileSync(path.join(process.cwd(), "package.json"), "utf8")).version;
 
@@ -9,21 +10,37 @@ export type Health = {
   version: string;
   time: number;
   database: { ok: boolean; migrations: number; journalMode: string; error?: string };
+  /** Last counters the ingester reported (connection, message rate, rejects per reason); stale after 20 s. */
+  ingester: ServiceStatus | null;
+  broker: ServiceStatus | null;
 };
 
 export function readHealth(): Health {
   const time = Date.now();
   try {
-    const sqlite = getDb().$client;
+    const db = getDb();
+    const sqlite = db.$client;
     const journalMode = String(sqlite.pragma("journal_mode", { simple: true }));
     const { n } = sqlite.prepare("SELECT count(*) AS n FROM __drizzle_migrations").get() as { n: number };
-    return { status: "ok", version, time, database: { ok: true, migrations: n, journalMode } };
+    const ingester = getIngesterStatus(db, time);
+    const broker = getBrokerStatus(db, time);
+    const ingesting = ingester !== null && !ingester.stale && ingester.connected;
+    return {
+      status: ingesting ? "ok" : "degraded",
+      version,
+      time,
+      database: { ok: true, migrations: n, journalMode },
+      ingester,
+      broker,
+    };
   } catch (e) {
     return {
       status: "degraded",
       version,
       time,
       database: { ok: false, migrations: 0, journalMode: "", error: e instanceof Error ? e.message : String(e) },
+      ingester: null,
+      broker: null,
     };
   }
 }
