@@ -2,6 +2,7 @@ import fs from "node:fs";
 import type { Db } from "@/db/client";
 import { listCompressors } from "@/db/compressors";
 import { demoSites } from "@/db/demo-scenario";
+import { writeDevicesFile, type DemoDevice } from "@/simulator/devices";
 
 /** Device secrets kept from an earlier demo start, so the seed does not reissue them. */
 export function readDeviceSecrets(file: string): Map<string, string> {
@@ -13,9 +14,9 @@ export function readDeviceSecrets(file: string): Map<string, string> {
   }
 }
 
-/** Writes the simulator's device list: every demo compressor with its plain secret (mode 600). */
+/** Writes the simulator's device list: every demo compressor with its plain secret. */
 export function writeDemoDevices(db: Db, file: string, secrets: Map<string, string>): void {
-  const profiles = new Map<string, string>(demoSites.map((s) => [s.code, s.profile]));
+  const profiles = new Map<string, DemoDevice["profile"]>(demoSites.map((s) => [s.code, s.profile]));
   const devices = listCompressors(db, null)
     .filter((c) => secrets.has(c.deviceId))
     .map((c) => ({
@@ -33,5 +34,5 @@ export function writeDemoDevices(db: Db, file: string, secrets: Map<string, stri
       bankVolumeL: c.bankVolumeL,
       profile: profiles.get(c.siteCode) ?? "industrial",
     }));
-  fs.writeFileSync(file, `${JSON.stringify({ devices }, null, 2)}\n`, { mode: 0o600 });
+  writeDevicesFile(file, { devices });
 }
