@@ -1,24 +1,21 @@
 import { dehydrate, HydrationBoundary } from "@tanstack/react-query";
-import { FleetList } from "@/components/fleet-list";
-import { fleetQueries } from "@/components/queries/fleet";
+import { Board } from "@/components/board/board";
+import { liveQueries } from "@/components/queries/live";
 import { makeQueryClient } from "@/components/query-client";
+import { loadBoard } from "@/db/board";
 import { getDb } from "@/db/client";
-import { listCompressors } from "@/db/compressors";
-import { listSites } from "@/db/sites";
 import { pageUser } from "@/lib/auth/current-user";
 
 export const metadata = { title: "Board" };
+export const dynamic = "force-dynamic";
 
 export default async function BoardPage() {
   const user = await pageUser("board.view");
-  const db = getDb();
   const client = makeQueryClient();
-  await client.prefetchQuery({ ...fleetQueries.sites(), queryFn: () => listSites(db, user.siteIds) });
-  await client.prefetchQuery({ ...fleetQueries.compressors(), queryFn: () => listCompressors(db, user.siteIds) });
+  await client.prefetchQuery({ ...liveQueries.board({ kind: "user" }), queryFn: () => loadBoard(getDb(), user.siteIds) });
   return (
     <HydrationBoundary state={dehydrate(client)}>
-      <h1 className="mb-3 text-2xl font-semibold">Board</h1>
-      <FleetList />
+      <Board source={{ kind: "user" }} title="Board" />
     </HydrationBoundary>
   );
 }

@@ -1,0 +1,16 @@
+import { NextResponse } from "next/server";
+import { route } from "@/lib/api/route";
+import { requirePermission } from "@/lib/auth/current-user";
+import { createLiveToken } from "@/lib/live-token";
+import { crossOriginRefusal, liveHubUrl, noStore } from "../hub-address";
+
+export const dynamic = "force-dynamic";
+
+/** A short-lived token for the live WebSocket, scoped to the signed-in person's sites. */
+export const GET = route(async (request: Request) => {
+  const refusal = crossOriginRefusal(request);
+  if (refusal) return refusal;
+  const user = await requirePermission("board.view");
+  const token = createLiveToken({ userId: user.id, siteIds: user.siteIds });
+  return NextResponse.json({ url: liveHubUrl(request), token }, { headers: noStore });
+});

@@ -1,0 +1,5 @@
+import { DisplayRevoked } from "@/components/board/display-revoked";
+
+export default function DisplayLinkRevoked() {
+  return <DisplayRevoked />;
+}

@@ -1,0 +1,37 @@
+import { keepPreviousData, queryOptions } from "@tanstack/react-query";
+import type { DeviceEventDto } from "@/db/trends";
+import { trendSpanMs, type TrendResponse, type TrendSignal, type TrendSpan } from "@/shared/board";
+import { HttpError } from "./live";
+
+async function getJson<T>(url: string): Promise<T> {
+  const res = await fetch(url, { headers: { accept: "application/json" }, credentials: "same-origin" });
+  if (!res.ok) {
+    const body = (await res.json().catch(() => null)) as { error?: string } | null;
+    throw new HttpError(res.status, body?.error ?? `${url} answered ${res.status}`);
+  }
+  return (await res.json()) as T;
+}
+
+/** How often a span's chart refreshes: every few seconds for minutes, every few minutes for months. */
+export function trendRefreshMs(span: TrendSpan): number {
+  return Math.min(10 * 60_000, Math.max(5_000, trendSpanMs[span] / 180));
+}
+
+export const trendQueries = {
+  /** [t, mean, min, max] in bar / °C, converted to the person's unit when drawn. */
+  trend: (compressorId: number, signal: TrendSignal, span: TrendSpan) =>
+    queryOptions({
+      queryKey: ["compressor", compressorId, "trend", signal, span],
+      queryFn: () => getJson<TrendResponse>(`/api/compressors/${compressorId}/trend?signal=${signal}&span=${span}`),
+      staleTime: trendRefreshMs(span),
+      refetchInterval: trendRefreshMs(span),
+      placeholderData: keepPreviousData,
+    }),
+  /** Comms, state-change and trip events of one compressor, newest first. */
+  events: (compressorId: number) =>
+    queryOptions({
+      queryKey: ["compressor", compressorId, "events"],
+      queryFn: () => getJson<{ events: DeviceEventDto[] }>(`/api/compressors/${compressorId}/events?limit=100`).then((r) => r.events),
+      refetchInterval: 30_000,
+    }),
+};
