@@ -41,6 +41,14 @@ export function initialEvaluatorState(activeKeys: Iterable<string> = []): Evalua
   return { runningSince: null, lastRunState: null, limits, trip: { active: tripActive, code: null } };
 }
 
+const keys = new WeakMap<Limit, string>();
+// Limits are long-lived objects evaluated for every reading; their keys are built once.
+function keyOf(limit: Limit): string {
+  let key = keys.get(limit);
+  if (key === undefined) keys.set(limit, (key = limitKey(limit)));
+  return key;
+}
+
 function beyond(limit: Limit, v: number): boolean {
   return limit.direction === "high" ? v > limit.value : v < limit.value;
 }
@@ -78,7 +86,7 @@ export function evaluateSample(
   }
 
   for (const limit of limits) {
-    const key = limitKey(limit);
+    const key = keyOf(limit);
     const s = (state.limits[key] ??= { active: false, since: null, raises: [] });
     const suppressed = signalInfo[limit.signal].suppressWhenStopped && !settled;
 
