@@ -429,3 +429,178 @@ export const events = sqliteTable(
 export type ThresholdLimitRow = typeof thresholdLimits.$inferSelect;
 export type AlarmRow = typeof alarms.$inferSelect;
 export type EventRow = typeof events.$inferSelect;
+
+// ---- Mail: contacts, notification rules, on-call rota, notifier state, outbox, and the SMTP fake's mailbox ----
+
+/** Someone Airkeep may e-mail; optionally the person's own account (for their units). */
+export const contacts = sqliteTable("contacts", {
+  id: integer("id").primaryKey({ autoIncrement: true }),
+  name: text("name").notNull(),
+  email: text("email").notNull().unique(),
+  userId: integer("user_id").references(() => users.id, { onDelete: "set null" }),
+  /** An inactive contact receives nothing, whatever the rules and the rota say. */
+  active: integer("active", { mode: "boolean" }).notNull().default(true),
+  note: text("note").notNull().default(""),
+  createdAt: integer("created_at").notNull(),
+  updatedAt: integer("updated_at").notNull(),
+});
+
+/**
+ * Who is told about an alarm: a site (null = every site), the lowest priority that matches, and the target — one contact,
+ * or whoever is on call at the alarm's site. "chain" rules form the escalation order (by position); "copy" rules are told
+ * at the first notice and of the all-clear, and are never escalated to.
+ */
+export const notificationRules = sqliteTable(
+  "notification_rules",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    siteId: integer("site_id").references(() => sites.id, { onDelete: "cascade" }),
+    minPriority: text("min_priority", { enum: ["critical", "warning", "advisory"] }).notNull(),
+    target: text("target", { enum: ["contact", "on-call"] }).notNull(),
+    contactId: integer("contact_id").references(() => contacts.id, { onDelete: "cascade" }),
+    mode: text("mode", { enum: ["chain", "copy"] }).notNull().default("chain"),
+    position: integer("position").notNull().default(0),
+    /** Minutes without acknowledgement before the next in the chain is told; null = ESCALATE_AFTER_MIN. */
+    escalateAfterMin: integer("escalate_after_min"),
+    enabled: integer("enabled", { mode: "boolean" }).notNull().default(true),
+    createdAt: integer("created_at").notNull(),
+    updatedAt: integer("updated_at").notNull(),
+  },
+  (t) => [index("notification_rules_site_idx").on(t.siteId)],
+);
+
+/** One line of a site's on-call rota: a contact on the given weekdays between local start and end (site time zone). */
+export const onCallEntries = sqliteTable(
+  "on_call_entries",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    siteId: integer("site_id")
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    contactId: integer("contact_id")
+      .notNull()
+      .references(() => contacts.id, { onDelete: "cascade" }),
+    /** Order among people on call at the same time: the first is told first, the next on escalation. */
+    position: integer("position").notNull().default(0),
+    /** ISO weekdays the shift starts on, 1 = Monday … 7 = Sunday. */
+    weekdays: text("weekdays", { mode: "json" }).$type<number[]>().notNull(),
+    /** Local wall-clock "HH:MM"; an end at or before the start runs past midnight into the next day. */
+    startTime: text("start_time").notNull(),
+    endTime: text("end_time").notNull(),
+    createdAt: integer("created_at").notNull(),
+    updatedAt: integer("updated_at").notNull(),
+  },
+  (t) => [index("on_call_entries_site_idx").on(t.siteId, t.position)],
+);
+
+/** The notifier's record of one notice thread: a single alarm, or a digest window at one site. */
+export const notifyThreads = sqliteTable(
+  "notify_threads",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    /** "alarm:<id>" or "digest:<siteId>:<windowStart>". */
+    key: text("key").notNull().unique(),
+    kind: text("kind", { enum: ["alarm", "digest"] }).notNull(),
+    siteId: integer("site_id").notNull(),
+    priority: text("priority", { enum: ["critical", "warning", "advisory"] }).notNull(),
+    windowStart: integer("window_start").notNull(),
+    /** Digest: alarms raised at the site before this are held for the next digest. */
+    windowEnd: integer("window_end"),
+    /** Escalation steps taken (0 = only the first notice). */
+    level: integer("level").notNull().default(0),
+    lastStepAt: integer("last_step_at").notNull(),
+    nextStepAt: integer("next_step_at"),
+    /** Every contact told so far (first notice, escalations, re-alarms). */
+    contactIds: text("contact_ids", { mode: "json" }).$type<number[]>().notNull(),
+    reAlarmSeenAt: integer("re_alarm_seen_at"),
+    /** Set once the all-clear was queued (or found unnecessary): the thread is finished. */
+    resolvedAt: integer("resolved_at"),
+    createdAt: integer("created_at").notNull(),
+    updatedAt: integer("updated_at").notNull(),
+  },
+  (t) => [index("notify_threads_open_idx").on(t.resolvedAt, t.siteId)],
+);
+
+/** Alarms the notifier has handled, and the thread each belongs to. */
+export const notifyAlarms = sqliteTable(
+  "notify_alarms",
+  {
+    alarmId: integer("alarm_id").primaryKey(),
+    threadId: integer("thread_id")
+      .notNull()
+      .references(() => notifyThreads.id, { onDelete: "cascade" }),
+    siteId: integer("site_id").notNull(),
+    handledAt: integer("handled_at").notNull(),
+  },
+  (t) => [index("notify_alarms_thread_idx").on(t.threadId)],
+);
+
+/** Mail waiting for, or handed to, the SMTP server: one row per message and recipient, never enqueued twice. */
+export const mailOutbox = sqliteTable(
+  "mail_outbox",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    /** Idempotency key, e.g. alarm:12:raise:0:to:3, alarm:12:resolved:to:3, digest:2:1711760400000:raise:0:to:3. */
+    key: text("key").notNull().unique(),
+    kind: text("kind", { enum: ["raise", "escalation", "re-alarm", "resolved", "digest", "digest-escalation", "digest-resolved", "report", "test"] }).notNull(),
+    priority: text("priority", { enum: ["critical", "warning", "advisory"] }),
+    siteId: integer("site_id"),
+    alarmId: integer("alarm_id"),
+    threadId: integer("thread_id"),
+    contactId: integer("contact_id"),
+    toAddress: text("to_address").notNull(),
+    toName: text("to_name").notNull().default(""),
+    subject: text("subject").notNull(),
+    text: text("text").notNull(),
+    html: text("html").notNull(),
+    /** Derived from the key (and this database's mail instance id): a resend after a crash carries the same one. */
+    messageId: text("message_id").notNull().unique(),
+    status: text("status", { enum: ["pending", "sending", "sent", "failed"] }).notNull().default("pending"),
+    attempts: integer("attempts").notNull().default(0),
+    nextAttemptAt: integer("next_attempt_at").notNull(),
+    claimToken: text("claim_token"),
+    claimedAt: integer("claimed_at"),
+    sentAt: integer("sent_at"),
+    /** The id the SMTP server gave the message in its reply, when it gave one. */
+    serverMessageId: text("server_message_id"),
+    serverResponse: text("server_response"),
+    lastError: text("last_error"),
+    createdAt: integer("created_at").notNull(),
+    updatedAt: integer("updated_at").notNull(),
+  },
+  (t) => [
+    index("mail_outbox_due_idx").on(t.status, t.nextAttemptAt),
+    index("mail_outbox_alarm_idx").on(t.alarmId),
+    index("mail_outbox_created_idx").on(t.createdAt),
+  ],
+);
+
+/** What the built-in SMTP fake received (the demo's mailbox). */
+export const mailReceived = sqliteTable(
+  "mail_received",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    receivedAt: integer("received_at").notNull(),
+    messageId: text("message_id"),
+    /** An earlier message with the same Message-ID: this one is a duplicate delivery. */
+    duplicateOf: integer("duplicate_of"),
+    envelopeFrom: text("envelope_from").notNull().default(""),
+    envelopeTo: text("envelope_to", { mode: "json" }).$type<string[]>().notNull(),
+    fromText: text("from_text").notNull().default(""),
+    toText: text("to_text").notNull().default(""),
+    subject: text("subject").notNull().default(""),
+    text: text("text").notNull().default(""),
+    html: text("html"),
+    headers: text("headers", { mode: "json" }).$type<[string, string][]>().notNull(),
+    size: integer("size").notNull(),
+    remoteAddress: text("remote_address").notNull().default(""),
+  },
+  (t) => [index("mail_received_message_id_idx").on(t.messageId), index("mail_received_at_idx").on(t.receivedAt)],
+);
+
+export type ContactRow = typeof contacts.$inferSelect;
+export type NotificationRuleRow = typeof notificationRules.$inferSelect;
+export type OnCallEntryRow = typeof onCallEntries.$inferSelect;
+export type NotifyThreadRow = typeof notifyThreads.$inferSelect;
+export type MailOutboxRow = typeof mailOutbox.$inferSelect;
+export type MailReceivedRow = typeof mailReceived.$inferSelect;

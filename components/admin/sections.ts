@@ -22,4 +22,16 @@ export const adminSections: { href: string; label: string; permission: Permissio
     permission: "admin.displays",
     what: "Revocable links that open the board without navigation on a wall screen.",
   },
+  {
+    href: "/admin/contacts",
+    label: "Contacts & on-call",
+    permission: "admin.mail",
+    what: "Who is e-mailed about alarms: contacts, rules by site and priority, escalation order, each site's on-call rota.",
+  },
+  {
+    href: "/admin/mailbox",
+    label: "Mailbox",
+    permission: "admin.mail",
+    what: "The outgoing alarm e-mail queue, and what the built-in SMTP fake received.",
+  },
 ];
