@@ -36,6 +36,7 @@ export default defineConfig({
       PORT: String(e2e.port),
       MQTT_PORT: String(e2e.mqttPort),
       LIVE_PORT: String(e2e.livePort),
+      SMTP_PORT: String(e2e.smtpPort),
       DATABASE_URL: e2e.databaseUrl,
       NEXTAUTH_URL: e2e.baseURL,
       NEXT_TELEMETRY_DISABLED: "1",

@@ -2,8 +2,10 @@ import { randomBytes } from "node:crypto";
 import bcrypt from "bcryptjs";
 import { eq } from "drizzle-orm";
 import type { Db } from "./client";
-import { DEMO_PASSWORD, demoCompressors, demoEmail, demoModels, demoSites, demoUsers } from "./demo-scenario";
-import { compressorModels, compressors, sites, users, userSites } from "./schema";
+import { seedDemoContacts } from "./contacts";
+import { DEMO_PASSWORD, demoCompressors, demoEmail, demoModels, demoOrganisation, demoSites, demoUsers } from "./demo-scenario";
+import { seedDemoThresholds } from "./demo-thresholds";
+import { compressorModels, compressors, settings, sites, users, userSites } from "./schema";
 
 export type SeedResult = {
   created: { sites: number; models: number; compressors: number; users: number; credentials: number };
@@ -95,7 +97,11 @@ export function seedDemo(db: Db, knownSecrets: Map<string, string> = new Map(), 
       for (const code of u.sites ?? []) tx.insert(userSites).values({ userId: row.id, siteId: siteIds.get(code)! }).run();
       created.users++;
     }
+
+    tx.insert(settings).values({ key: "organisation.name", value: demoOrganisation, updatedAt: now }).onConflictDoNothing().run();
   });
+  seedDemoThresholds(db, now);
+  seedDemoContacts(db, now);
 
   return { created, deviceSecrets };
 }

@@ -16,6 +16,7 @@ const { values: flags } = parseArgs({
     reset: { type: "boolean", default: false },
     "skip-build": { type: "boolean", default: false },
     "no-simulator": { type: "boolean", default: false },
+    "backfill-days": { type: "string", default: "90" },
   },
 });
 
@@ -41,7 +42,10 @@ console.log(`[airkeep] database ${databasePath()} migrated; demo data: ${JSON.st
 
 stopOnSignals();
 if (!flags["skip-build"]) await buildIfNeeded(env);
-const where = await startServices(env, { simulator: !flags["no-simulator"] });
+const where = await startServices(env, {
+  simulator: !flags["no-simulator"],
+  backfillDays: Math.max(0, Number(flags["backfill-days"]) || 0),
+});
 
 console.log(`
   Airkeep demo is running.

@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from "node:child_process";
 
-type Managed = { name: string; child: ChildProcess };
+type Managed = { name: string; child: ChildProcess; oneShot: boolean };
 
 const children: Managed[] = [];
 let stopping = false;
@@ -17,18 +17,29 @@ function prefixLines(name: string, stream: NodeJS.ReadableStream | null, out: No
   });
 }
 
-/** Starts a child process with prefixed output; if it dies while we are not stopping, everything stops. */
-export function startProcess(name: string, command: string, args: string[], env: NodeJS.ProcessEnv): ChildProcess {
+function spawnManaged(name: string, command: string, args: string[], env: NodeJS.ProcessEnv, oneShot: boolean) {
   const child = spawn(command, args, { env, stdio: ["ignore", "pipe", "pipe"] });
   prefixLines(name, child.stdout, process.stdout);
   prefixLines(name, child.stderr, process.stderr);
-  children.push({ name, child });
+  children.push({ name, child, oneShot });
+  return child;
+}
+
+/** Starts a long-running child process with prefixed output; if it dies while we are not stopping, everything stops. */
+export function startProcess(name: string, command: string, args: string[], env: NodeJS.ProcessEnv): ChildProcess {
+  const child = spawnManaged(name, command, args, env, false);
   child.on("exit", (code, signal) => {
     if (stopping) return;
     console.error(`[airkeep] ${name} exited (${signal ?? code}); stopping the rest.`);
     void stopAll(1);
   });
   return child;
+}
+
+/** Runs a job that ends by itself (stopped with the rest on Ctrl-C); resolves with its exit code. */
+export function runJob(name: string, command: string, args: string[], env: NodeJS.ProcessEnv): Promise<number> {
+  const child = spawnManaged(name, command, args, env, true);
+  return new Promise((resolve) => child.on("exit", (code) => resolve(code ?? 1)));
 }
 
 /** Runs a command to completion, inheriting the terminal. */

@@ -1,31 +1,46 @@
-import fs from "node:fs";
 import path from "node:path";
-import { startProcess } from "./processes";
+import { runJob, startProcess } from "./processes";
 
 const tsx = path.resolve("node_modules/.bin/tsx");
 const next = path.resolve("node_modules/next/dist/bin/next");
 
-/** Starts broker (unless MQTT_URL names another), ingester, optionally the simulator, and the web server. */
-export async function startServices(env: NodeJS.ProcessEnv, opts: { simulator: boolean }): Promise<string[]> {
+export type ServiceOptions = {
+  /** Publish the demo fleet; first write the missing history (backfillDays) while everything else already runs. */
+  simulator: boolean;
+  backfillDays?: number;
+};
+
+/** Starts broker (unless MQTT_URL names another), ingester, mail, web and optionally the simulator; returns where each listens. */
+export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions): Promise<string[]> {
   const where: string[] = [];
-  const mqttPort = env.MQTT_PORT ?? "1883";
   if (!env.MQTT_URL) {
-    if (fs.existsSync("lib/broker/main.ts")) {
-      startProcess("broker", tsx, ["lib/broker/main.ts"], env);
-      where.push(`MQTT       mqtt://127.0.0.1:${mqttPort} (embedded broker)`);
-    }
-    env.MQTT_URL = `mqtt://127.0.0.1:${mqttPort}`;
+    const port = env.MQTT_PORT ?? "1883";
+    startProcess("broker", tsx, ["lib/broker/main.ts"], env);
+    env.MQTT_URL = `mqtt://127.0.0.1:${port}`;
+    where.push(`MQTT       ${env.MQTT_URL} (embedded broker)`);
   } else {
     where.push(`MQTT       ${env.MQTT_URL} (external broker)`);
   }
-  if (fs.existsSync("lib/ingester/main.ts")) {
-    startProcess("ingester", tsx, ["lib/ingester/main.ts"], env);
-    where.push(`Live       ws://${env.LIVE_HOST ?? "127.0.0.1"}:${env.LIVE_PORT ?? "3001"} (WebSocket hub)`);
-  }
-  if (opts.simulator && fs.existsSync("simulator/main.ts")) {
-    startProcess("simulator", tsx, ["simulator/main.ts"], env);
-    where.push("Simulator  publishing the demo fleet");
-  }
+  startProcess("ingester", tsx, ["lib/ingester/main.ts"], env);
+  where.push(`Live       ws://${env.LIVE_HOST ?? "127.0.0.1"}:${env.LIVE_PORT ?? "3001"} (WebSocket hub)`);
+  startProcess("mail", tsx, ["lib/mail/main.ts"], env);
+  where.push(
+    env.SMTP_URL
+      ? "Mail       alarm e-mail via SMTP_URL"
+      : `Mail       smtp://127.0.0.1:${env.SMTP_PORT ?? "2525"} (SMTP fake; read it at /admin/mailbox)`,
+  );
   startProcess("web", process.execPath, [next, "start", "-p", env.PORT ?? "3000", "-H", env.HOST ?? "127.0.0.1"], env);
+
+  if (opts.simulator) {
+    const days = opts.backfillDays ?? 0;
+    where.push(days > 0 ? `Simulator  writing up to ${days} days of history first, then publishing live` : "Simulator  publishing the demo fleet");
+    void (async () => {
+      if (days > 0) {
+        const code = await runJob("backfill", tsx, ["simulator/main.ts", "--backfill", `${days}d`], env);
+        if (code !== 0) console.error(`[airkeep] backfill ended with ${code}; the live simulator starts anyway.`);
+      }
+      startProcess("simulator", tsx, ["simulator/main.ts"], env);
+    })();
+  }
   return where;
 }

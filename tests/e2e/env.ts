@@ -5,6 +5,7 @@ export const e2e = {
   port: 3100,
   mqttPort: 18831,
   livePort: 13101,
+  smtpPort: 12526,
   databaseUrl: path.resolve("data/e2e/airkeep.db"),
   get baseURL() {
     return `http://localhost:${this.port}`;
