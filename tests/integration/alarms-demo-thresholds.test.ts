@@ -14,13 +14,16 @@ import { makeTempDb, type TempDb } from "./alarms-fixtures";
 
 let t: TempDb;
 let db: Db;
-let firstSeed: { limits: number; sets: number };
+let seeded: { limits: number; sets: number };
 
 beforeAll(() => {
   t = makeTempDb("airkeep-alarms-demo-");
   db = t.db;
+  // The demo seed adds the thresholds itself; count what it left.
   seedDemo(db);
-  firstSeed = seedDemoThresholds(db);
+  seeded = db.$client
+    .prepare("SELECT (SELECT count(*) FROM threshold_limits) AS limits, (SELECT count(*) FROM threshold_sets) AS sets")
+    .get() as { limits: number; sets: number };
 });
 afterAll(() => t.cleanup());
 
@@ -79,8 +82,8 @@ function readingOf(u: Unit, m: CompressorModel, seq: number): ReadingInput {
 
 describe("demo thresholds", () => {
   it("are seeded once per model and override, idempotently", () => {
-    expect(firstSeed.limits).toBe(Object.values(demoModelLimits).reduce((n, l) => n + l.length, 0) + 2);
-    expect(firstSeed.sets).toBe(Object.keys(demoModelLimits).length + 2);
+    expect(seeded.limits).toBe(Object.values(demoModelLimits).reduce((n, l) => n + l.length, 0) + 2);
+    expect(seeded.sets).toBe(Object.keys(demoModelLimits).length + 2);
     expect(seedDemoThresholds(db)).toEqual({ limits: 0, sets: 0 });
     const units = new Map(listCompressors(db, null).map((c) => [c.deviceId, c]));
     const fill = effectiveLimits(db, units.get("cr-fill")!.id);
