@@ -1,7 +1,6 @@
-import { randomBytes } from "node:crypto";
-import fs from "node:fs";
 import path from "node:path";
 import { databasePath } from "@/db/client";
+import { keptSecret } from "@/lib/kept-secret";
 import { TOPIC_ROOT } from "@/shared/telemetry";
 
 /** MQTT user name reserved for the ingester's subscribe-only credential. */
@@ -17,28 +16,7 @@ export function ingestSecretPath(dbFile = databasePath()): string {
   return path.join(path.dirname(dbFile), "mqtt-ingest.secret");
 }
 
-/**
- * The ingester's MQTT password: MQTT_INGEST_PASSWORD when set, otherwise a random one kept beside the
- * database (created on first use, readable by the owner only) so the broker and the ingester agree.
- */
+/** The ingester's MQTT password: MQTT_INGEST_PASSWORD when set, otherwise one kept beside the database. */
 export function ingestPassword(dbFile = databasePath(), env: Record<string, string | undefined> = process.env): string {
-  const fromEnv = env.MQTT_INGEST_PASSWORD;
-  if (fromEnv) return fromEnv;
-  const file = ingestSecretPath(dbFile);
-  fs.mkdirSync(path.dirname(file), { recursive: true });
-  if (!fs.existsSync(file)) {
-    // Written aside and linked into place, so a process starting at the same moment never reads half a file.
-    const tmp = `${file}.${process.pid}.${randomBytes(4).toString("hex")}`;
-    fs.writeFileSync(tmp, `${randomBytes(24).toString("base64url")}\n`, { mode: 0o600 });
-    try {
-      fs.linkSync(tmp, file);
-    } catch (e) {
-      if ((e as NodeJS.ErrnoException).code !== "EEXIST") throw e;
-    } finally {
-      fs.rmSync(tmp, { force: true });
-    }
-  }
-  const secret = fs.readFileSync(file, "utf8").trim();
-  if (secret.length < 16) throw new Error(`${file} holds no usable secret`);
-  return secret;
+  return env.MQTT_INGEST_PASSWORD || keptSecret(path.basename(ingestSecretPath(dbFile)), dbFile);
 }

@@ -6,7 +6,8 @@ import { DEMO_PASSWORD, demoEmail, demoUsers } from "@/db/demo-scenario";
 import { runMigrations } from "@/db/migrate";
 import { seedDemo } from "@/db/seed";
 import { buildIfNeeded } from "./build-if-needed";
-import { dataDir, keptSecret } from "./data-dir";
+import { keptSecret } from "@/lib/kept-secret";
+import { dataDir } from "./data-dir";
 import { readDeviceSecrets, writeDemoDevices } from "./demo-devices";
 import { startServices } from "./services";
 import { stopOnSignals } from "./processes";
@@ -30,7 +31,7 @@ env.PORT ??= "3000";
 env.HOST ??= "127.0.0.1";
 env.NEXTAUTH_URL ??= `http://localhost:${env.PORT}`;
 env.NEXTAUTH_SECRET ??= keptSecret("nextauth.secret");
-env.MQTT_INGEST_PASSWORD ??= keptSecret("mqtt-ingest.secret");
+
 
 const db = openDatabase();
 runMigrations(db);

@@ -1,6 +1,6 @@
 import { databasePath, openDatabase } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
-import { keptSecret } from "./data-dir";
+import { keptSecret } from "@/lib/kept-secret";
 import { startServices } from "./services";
 import { stopOnSignals } from "./processes";
 
@@ -12,7 +12,7 @@ if (!env.NEXTAUTH_SECRET) {
   console.warn("[airkeep] NEXTAUTH_SECRET is not set; using the one kept in the data folder.");
   env.NEXTAUTH_SECRET = keptSecret("nextauth.secret");
 }
-env.MQTT_INGEST_PASSWORD ??= keptSecret("mqtt-ingest.secret");
+
 
 const db = openDatabase();
 runMigrations(db);
