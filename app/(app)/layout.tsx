@@ -1,5 +1,6 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
+import { CriticalToast } from "@/components/alarms/critical-toast";
 import { MainNav } from "@/components/main-nav";
 import { Providers } from "@/components/providers";
 import { SafetyNotice } from "@/components/safety-notice";
@@ -28,6 +29,7 @@ export default async function SignedInLayout({ children }: { children: ReactNode
         </header>
         <main className="flex-1 px-4 py-4">{children}</main>
         <SafetyNotice />
+        <CriticalToast />
       </div>
     </Providers>
   );

@@ -7,6 +7,8 @@ import type { LiveMessage } from "@/shared/live";
 import type { UnitPreference } from "@/shared/units";
 import { useServerNow } from "../live/server-clock";
 import { liveStatusText, useLive, type LiveState } from "../live/use-live";
+import type { AlarmCounts } from "../alarms/alarm-badges";
+import { alarmQueries } from "../queries/alarms";
 import { applyLiveMessage, HttpError, liveQueries, liveTokenUrl, type BoardSource } from "../queries/live";
 import { useUnits } from "../use-units";
 import { CompressorTile } from "./compressor-tile";
@@ -66,12 +68,14 @@ function SiteSection({
   now,
   units,
   linkable,
+  alarmCounts,
 }: {
   site: BoardSite;
   data: BoardData;
   now: number;
   units: UnitPreference;
   linkable: boolean;
+  alarmCounts: Record<string, AlarmCounts> | undefined;
 }) {
   const compressors = data.compressors.filter((c) => c.siteId === site.id);
   const headingId = `site-${site.id}-name`;
@@ -96,7 +100,7 @@ function SiteSection({
       {compressors.length ? (
         <div className="grid" style={{ gap: `${GAP_EM}em`, gridTemplateColumns: `repeat(auto-fill, minmax(min(100%, ${TILE_EM}em), 1fr))` }}>
           {compressors.map((c) => (
-            <CompressorTile key={c.id} c={c} now={now} units={units} linkable={linkable} />
+            <CompressorTile key={c.id} c={c} now={now} units={units} linkable={linkable} alarms={alarmCounts?.[c.id]} />
           ))}
         </div>
       ) : (
@@ -124,6 +128,10 @@ export function Board({ source, title }: { source: BoardSource; title: string })
   });
   const now = useServerNow(board.data?.at ?? 0);
   const kiosk = source.kind === "display";
+  const alarmCounts = useQuery({
+    ...(source.kind === "display" ? alarmQueries.displayCounts(source.token) : alarmQueries.counts()),
+    enabled: !revoked,
+  });
 
   const refusedStatus = board.error instanceof HttpError ? board.error.status : live.status === "refused" ? live.refusal : null;
   const linkGone = kiosk && (refusedStatus === 410 || refusedStatus === 404);
@@ -153,7 +161,15 @@ export function Board({ source, title }: { source: BoardSource; title: string })
       {board.data && board.data.sites.length === 0 && <p className="text-muted">No sites to show.</p>}
       <div className="flex flex-wrap gap-x-[1.5em] gap-y-[1em]">
         {board.data?.sites.map((site) => (
-          <SiteSection key={site.id} site={site} data={board.data} now={now} units={units} linkable={!kiosk} />
+          <SiteSection
+            key={site.id}
+            site={site}
+            data={board.data}
+            now={now}
+            units={units}
+            linkable={!kiosk}
+            alarmCounts={alarmCounts.data?.counts}
+          />
         ))}
       </div>
     </div>

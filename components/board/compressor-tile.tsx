@@ -10,6 +10,7 @@ import {
 } from "@/shared/board";
 import { tripCodeLabel } from "@/shared/trip-codes";
 import { pressureFromBar, pressureLabel, type UnitPreference } from "@/shared/units";
+import { AlarmBadges, type AlarmCounts } from "../alarms/alarm-badges";
 import { Band } from "./band";
 import { pressureParts, pressureShort, temperatureParts, type Quantity } from "./format";
 import { StateChip } from "./state-chip";
@@ -34,12 +35,15 @@ export const CompressorTile = memo(function CompressorTile({
   now,
   units,
   linkable,
+  alarms,
 }: {
   c: BoardCompressor;
   /** Server time, ms. */
   now: number;
   units: UnitPreference;
   linkable: boolean;
+  /** Active alarms by priority; none shown when absent. */
+  alarms?: AlarmCounts;
 }) {
   const condition = classifyCondition(c.live, now);
   const { current, freshness } = condition;
@@ -88,8 +92,9 @@ export const CompressorTile = memo(function CompressorTile({
             </p>
           )}
         </div>
-        {/* Active alarms by priority go here; nothing is shown until alarms exist. */}
-        <div className="flex h-[1.6em] min-w-[1.6em] shrink-0 items-center gap-[0.25em]" data-testid="alarm-slot" />
+        <div className="flex h-[1.6em] min-w-[1.6em] shrink-0 items-center gap-[0.25em]" data-testid="alarm-slot">
+          <AlarmBadges counts={alarms} label={c.name} href={linkable ? `/alarms?compressor=${c.id}` : undefined} />
+        </div>
       </header>
 
       <div className="flex items-center gap-[0.5em]">
