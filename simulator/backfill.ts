@@ -1,6 +1,8 @@
 import cliProgress from "cli-progress";
 import type { Db } from "../db/client";
 import { createReadingStore } from "../db/readings";
+import { acknowledgeAlarms } from "../db/alarms";
+import { createAlarmEngine } from "../lib/alarms/engine";
 import { createTelemetryStateWriter, type DeviceEventInput } from "../db/telemetry-state";
 import type { ReadingInput } from "../shared/telemetry";
 import { DeviceSim } from "./device-sim";
@@ -28,6 +30,8 @@ export type BackfillOptions = {
   log?: (line: string) => void;
   /** Rows per store transaction. */
   batchRows?: number;
+  /** Evaluate alarms over the history (default true). */
+  alarms?: boolean;
   /** The ingester notices silence after this long (its COMMS_TIMEOUT_S). */
   commsTimeoutMs?: number;
 };
@@ -70,6 +74,8 @@ export function backfill(opts: BackfillOptions): BackfillResult {
   const sqlite = opts.db.$client;
   const store = createReadingStore(opts.db);
   const events = createTelemetryStateWriter(opts.db);
+  // History goes through the same alarm engine as live readings, so the demo has alarms and an event log.
+  const alarmEngine = opts.alarms === false ? null : createAlarmEngine(opts.db);
 
   const compressorIdOf = sqlite.prepare("SELECT id FROM compressors WHERE device_id = ?");
   const bounds = sqlite.prepare(
@@ -196,6 +202,14 @@ export function backfill(opts: BackfillOptions): BackfillResult {
           result.inserted += r.inserted;
           result.duplicates += r.duplicates;
         }
+        if (alarmEngine) {
+          const batch = old.length ? old.concat(raw) : raw;
+          if (batch.length) opts.db.$client.transaction(() => alarmEngine.onReadings(batch, batch[batch.length - 1]!.ts))();
+          for (const e of evs) {
+            if (e.kind === "comms_lost") alarmEngine.onCommsLost(e.compressorId, e.ts, e.ts);
+            else if (e.kind === "comms_restored") alarmEngine.onCommsRestored(e.compressorId, e.ts, e.ts);
+          }
+        }
         if (evs.length > 0) result.events += events.insertEvents(evs);
         raw = [];
         old = [];
@@ -241,7 +255,35 @@ export function backfill(opts: BackfillOptions): BackfillResult {
   }
   bar?.update(Math.round(totalSteps));
   bar?.stop();
+  if (alarmEngine) acknowledgeHistory(opts.db, now - DAY_MS);
   return { devices: plans.map((p) => p.result), elapsedMs: performance.now() - t0, counters };
+}
+
+const historyComments = [
+  "Checked on site; unit restarted after cooling down.",
+  "Seen on the board, technician informed.",
+  "Acknowledged from the on-call phone; follow-up booked.",
+];
+
+/** Alarms older than a day were dealt with in the invented history: a supervisor acknowledged each some minutes later. */
+function acknowledgeHistory(db: Db, before: number): void {
+  const supervisor = db.$client.prepare("SELECT id, email FROM users WHERE role = 'supervisor' AND disabled = 0 ORDER BY id LIMIT 1").get() as
+    | { id: number; email: string }
+    | undefined;
+  if (!supervisor) return;
+  const open = db.$client
+    .prepare("SELECT id, raised_at AS raisedAt FROM alarms WHERE state IN ('active-unacknowledged', 'cleared-unacknowledged') AND raised_at < ?")
+    .all(before) as { id: number; raisedAt: number }[];
+  for (const [i, a] of open.entries()) {
+    acknowledgeAlarms(db, {
+      ids: [a.id],
+      comment: historyComments[i % historyComments.length]!,
+      userId: supervisor.id,
+      actor: supervisor.email,
+      siteIds: null,
+      now: a.raisedAt + (4 + (i % 7) * 3) * 60_000,
+    });
+  }
 }
 
 function commsEvent(compressorId: number, ts: number, kind: "comms_lost" | "comms_restored", text: string): DeviceEventInput {
