@@ -179,7 +179,7 @@ function transition(
         continue;
       }
       if (siteIds && !siteIds.includes(row.a.siteId)) {
-        result.refused.push({ id, reason: "Not in the sites you may act on" });
+        result.refused.push({ id, reason: "No such alarm" });
         continue;
       }
       const extra = extraRefusal(row.a);

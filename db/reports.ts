@@ -887,7 +887,7 @@ export type MonthlyReportMail = { subject: string; text: string; html: string };
 
 /**
  * The monthly report of one site as an e-mail (plain text and HTML): headline figures, a line per compressor, the
- * alarm load against its benchmarks, links to the full and printable report, the definitions in brief and the
+ * alarm load against its benchmarks, links to the full and printable report, short definitions and the
  * safety notice. `baseUrl` (default NEXTAUTH_URL) makes the links absolute.
  */
 export function buildMonthlyReportMail(db: Db, siteId: number, month: Month, opts: { now?: number; baseUrl?: string } = {}): MonthlyReportMail | null {

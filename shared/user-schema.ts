@@ -16,13 +16,19 @@ export type SignInInput = z.infer<typeof signInSchema>;
 
 const siteIdsSchema = z.array(z.coerce.number().int().positive()).max(500);
 
+// Administrators manage users, sites and credentials for the whole organisation, so they are never limited to sites.
+const adminSeesEverySite: [(u: { role: string; siteIds: number[] }) => boolean, { path: string[]; message: string }] = [
+  (u) => u.role !== "admin" || u.siteIds.length === 0,
+  { path: ["siteIds"], message: "Administrators always see every site; leave the site scope empty" },
+];
+
 export const userInviteSchema = z.object({
   email: emailSchema,
   name: z.string().trim().min(1, "Enter a name").max(120),
   role: roleSchema,
   siteIds: siteIdsSchema,
   password: passwordSchema,
-});
+}).refine(...adminSeesEverySite);
 export type UserInvite = z.infer<typeof userInviteSchema>;
 
 export const userUpdateSchema = z.object({
@@ -30,7 +36,7 @@ export const userUpdateSchema = z.object({
   role: roleSchema,
   siteIds: siteIdsSchema,
   disabled: z.boolean(),
-});
+}).refine(...adminSeesEverySite);
 export type UserUpdate = z.infer<typeof userUpdateSchema>;
 
 export const unitPreferenceUpdateSchema = unitPreferenceSchema;

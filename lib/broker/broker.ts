@@ -48,7 +48,7 @@ export type BrokerCounters = {
 
 export type BrokerHandle = {
   port: number;
-  /** Drains what the ingester still has to receive (briefly), then closes every connection and the listener. */
+  /** Drains what the ingester still has to receive (for a moment), then closes every connection and the listener. */
   close(): Promise<void>;
   /** Closes the listener and drops every connection but keeps sessions and queued messages. */
   stopListening(): Promise<void>;

@@ -24,7 +24,7 @@ const parsed = userInviteSchema.safeParse({
 });
 if (!parsed.success) {
   console.error("Usage: npm run user:create -- --email you@example.org --name \"Your Name\" [--role admin] --password '…'");
-  for (const issue of parsed.error.issues) console.error(`  ${issue.path.join(".")}: ${issue.message}`);
+  for (const problem of parsed.error.issues) console.error(`  ${problem.path.join(".")}: ${problem.message}`);
   process.exit(2);
 }
 

@@ -30,8 +30,20 @@ const notifier = startNotifier({ db, config: notify, onQueued: () => sender.kick
 console.log(
   `[mail] notifier polling every ${notify.pollMs} ms (escalate after ${notify.escalateAfterMs / 60_000} min, digest above ${notify.digestThreshold} alarms in ${
     notify.digestWindowMs / 60_000
-  } min); sending to ${mail.smtpUrl}`,
+  } min); sending to ${redactedUrl(mail.smtpUrl)}`,
 );
+
+/** The SMTP address without its user name and password, for logs. */
+function redactedUrl(url: string): string {
+  try {
+    const u = new URL(url);
+    u.username = "";
+    u.password = "";
+    return u.toString();
+  } catch {
+    return "(unparsable SMTP_URL)";
+  }
+}
 
 const REPORT_CHECK_MS = 5 * 60_000;
 function queueReports() {

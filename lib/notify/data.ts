@@ -39,7 +39,8 @@ export function loadRoutingContext(db: Db): RoutingContext {
       id: c.id,
       name: c.name,
       email: c.email,
-      active: c.active,
+      // A contact whose account is disabled no longer receives site names, values and links.
+      active: c.active && !c.userDisabled,
       units: { pressureUnit: c.pressureUnit ?? defaultUnits.pressureUnit, temperatureUnit: c.temperatureUnit ?? defaultUnits.temperatureUnit },
     });
   }

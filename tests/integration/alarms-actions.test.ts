@@ -60,7 +60,7 @@ describe("site scope", () => {
     const res = acknowledgeAlarms(db, { ...who([fleet.siteA]), ids: [ids.c1Oil, ids.c2Delivery, 9999], comment: "Oil level checked" });
     expect(res.done).toEqual([ids.c1Oil]);
     expect(res.refused).toEqual([
-      { id: ids.c2Delivery, reason: "Not in the sites you may act on" },
+      { id: ids.c2Delivery, reason: "No such alarm" },
       { id: 9999, reason: "No such alarm" },
     ]);
     expect(getAlarm(db, ids.c2Delivery)!.state).toBe("active-unacknowledged");
@@ -70,11 +70,11 @@ describe("site scope", () => {
   it("refuses shelving, removal from service and return to service outside the person's sites", () => {
     const scope = who([fleet.siteB]);
     expect(shelveAlarms(db, { ...scope, ids: [ids.c1Temp], comment: "Fan being replaced", minutes: 60 }).refused[0]!.reason).toBe(
-      "Not in the sites you may act on",
+      "No such alarm",
     );
-    expect(setOutOfService(db, { ...scope, id: ids.c1Oil, reason: "Transmitter faulty" }).refused[0]!.reason).toBe("Not in the sites you may act on");
+    expect(setOutOfService(db, { ...scope, id: ids.c1Oil, reason: "Transmitter faulty" }).refused[0]!.reason).toBe("No such alarm");
     setOutOfService(db, { ...who(null), id: ids.c1Oil, reason: "Transmitter faulty" });
-    expect(returnToService(db, { ...scope, id: ids.c1Oil, comment: "Transmitter replaced" }).refused[0]!.reason).toBe("Not in the sites you may act on");
+    expect(returnToService(db, { ...scope, id: ids.c1Oil, comment: "Transmitter replaced" }).refused[0]!.reason).toBe("No such alarm");
     expect(getAlarm(db, ids.c1Oil)!.state).toBe("out-of-service");
   });
 });

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { csvField, csvRecord, csvText, eventCsvHeader, eventCsvRecord } from "@/app/api/events/csv";
+import { eventCsvHeader, eventCsvRecord } from "@/app/api/events/csv";
+import { csvField, csvRecord, csvText } from "@/shared/csv";
 import {
   effectiveZone,
   eventFilterQuery,

@@ -58,3 +58,12 @@ describe("shared form schemas", () => {
     expect(fieldErrors(userInviteSchema.safeParse({ ...invite, password: "long-enough-1", role: "root" }))).toEqual(["role"]);
   });
 });
+
+describe("administrators' site scope", () => {
+  it("is always every site: an admin with a site list is refused at the site field", () => {
+    const invite = { email: "a@b.org", name: "A", role: "admin", siteIds: [2], password: "long-enough-1" };
+    expect(fieldErrors(userInviteSchema.safeParse(invite))).toEqual(["siteIds"]);
+    expect(userInviteSchema.safeParse({ ...invite, siteIds: [] }).success).toBe(true);
+    expect(userInviteSchema.safeParse({ ...invite, role: "technician" }).success).toBe(true);
+  });
+});

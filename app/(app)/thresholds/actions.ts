@@ -12,8 +12,8 @@ import { thresholdActor } from "@/app/api/thresholds/access";
 // saveThresholdSet with that context; here only the envelope is checked, after the permission.
 const saveEnvelope = thresholdScopeSchema.extend({
   baseVersion: z.number().int().min(0),
-  reason: z.string(),
-  limits: z.array(z.unknown()),
+  reason: z.string().max(500),
+  limits: z.array(z.unknown()).max(200),
 });
 
 function refusals<T>(write: () => T): T {

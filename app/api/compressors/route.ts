@@ -8,5 +8,5 @@ export const dynamic = "force-dynamic";
 
 export const GET = route(async () => {
   const user = await requirePermission("compressors.view");
-  return NextResponse.json({ compressors: listCompressors(getDb(), user.siteIds) });
+  return NextResponse.json({ compressors: listCompressors(getDb(), user.siteIds) }, { headers: { "cache-control": "no-store" } });
 });

@@ -1,5 +1,6 @@
 import type { AlarmLoadSite, ComparisonReport, CsvTable, MonthlyReport, TimeSplit } from "@/shared/availability";
 import { alarmBenchmarks, priorityLevel } from "@/shared/alarm-load";
+import { csvText } from "@/shared/csv";
 import { localDateTime } from "@/shared/month";
 
 // Every table of the report as CSV: one header row, comma-separated, RFC 4180 quoting, UTF-8 with a byte-order
@@ -11,8 +12,7 @@ type Cell = string | number | boolean | null | undefined;
 function cell(v: Cell): string {
   if (v === null || v === undefined) return "";
   if (typeof v === "number") return Number.isFinite(v) ? String(Math.round(v * 1000) / 1000) : "";
-  const s = String(v);
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
+  return typeof v === "boolean" ? String(v) : csvText(v);
 }
 
 export function toCsv(header: readonly string[], rows: readonly (readonly Cell[])[]): string {

@@ -8,5 +8,5 @@ export const dynamic = "force-dynamic";
 
 export const GET = route(async () => {
   const user = await requirePermission("board.view");
-  return NextResponse.json({ sites: listSites(getDb(), user.siteIds) });
+  return NextResponse.json({ sites: listSites(getDb(), user.siteIds) }, { headers: { "cache-control": "no-store" } });
 });

@@ -13,6 +13,9 @@ const MAX_RUNNING = 2;
 let running = 0;
 const PROGRESS_EVERY_MS = 150;
 
+// A full threshold set is a few kilobytes; anything far larger is refused before parsing.
+const MAX_BODY_BYTES = 64 * 1024;
+
 /**
  * POST { compressorId, span: "24h" | "7d" | "30d", scopeType, scopeId, limits } — runs the proposed set against the one
  * in force over the compressor's stored history and streams NDJSON: {"type":"progress","fraction":0.42,"phase":"raw"}
@@ -20,7 +23,16 @@ const PROGRESS_EVERY_MS = 150;
  */
 export const POST = route(async (request: Request) => {
   const user = await requirePermission("thresholds.view");
-  const body = backtestRequestSchema.parse(await request.json().catch(() => ({})));
+  if (Number(request.headers.get("content-length") ?? 0) > MAX_BODY_BYTES) return errorJson(413, "The request is too large.");
+  const text = await request.text();
+  if (text.length > MAX_BODY_BYTES) return errorJson(413, "The request is too large.");
+  let raw: unknown;
+  try {
+    raw = JSON.parse(text || "{}");
+  } catch {
+    return errorJson(400, "The request body is not JSON.");
+  }
+  const body = backtestRequestSchema.parse(raw);
   const db = getDb();
   const compressor = getCompressor(db, body.compressorId);
   if (!compressor || !inScope(user, compressor.siteId)) return errorJson(404, "No such compressor.");
