@@ -20,6 +20,7 @@ import { AlarmActionPanel } from "./alarm-action-panel";
 import { actionApplies, formatAlarmAge, valueVsLimit, type AlarmActionKind } from "./format";
 import { alarmListQuery, type AlarmListParams } from "./list-params";
 import { PriorityMark, priorityWords } from "./priority-mark";
+import { FilterSelect } from "@/components/filter-select";
 
 export type AlarmSiteOption = { id: number; name: string };
 export type AlarmCompressorOption = { id: number; name: string; siteId: number };
@@ -442,40 +443,6 @@ export function AlarmList({
           className: a.id === highlightId ? "bg-panel outline-3 -outline-offset-3 outline-ink" : "",
         })}
       />
-    </div>
-  );
-}
-
-function FilterSelect({
-  label,
-  value,
-  options,
-  onChange,
-}: {
-  label: string;
-  value: string | number | undefined;
-  options: { value: string; label: string }[];
-  onChange: (value: string) => void;
-}) {
-  const id = useId();
-  return (
-    <div>
-      <label htmlFor={id} className="block text-xs font-semibold text-muted">
-        {label}
-      </label>
-      <select
-        id={id}
-        value={value === undefined ? "" : String(value)}
-        onChange={(e) => onChange(e.target.value)}
-        className="mt-0.5 rounded border border-line bg-white px-2 py-1 text-sm text-ink"
-      >
-        <option value="">All</option>
-        {options.map((o) => (
-          <option key={o.value} value={o.value}>
-            {o.label}
-          </option>
-        ))}
-      </select>
     </div>
   );
 }

@@ -18,6 +18,7 @@ import {
   type ZoneSite,
 } from "./search-params";
 import { formatZoned, isoWithOffset, offsetLabel } from "./zoned-time";
+import { FilterSelect } from "@/components/filter-select";
 
 export type EventCompressorOption = { id: number; name: string; siteId: number };
 
@@ -118,25 +119,25 @@ export function EventLog({
           </button>
         </div>
         <div className="flex flex-wrap items-end gap-3">
-          <Select
+          <FilterSelect
             label="Site"
             value={applied.site}
             options={sites.map((s) => ({ value: String(s.id), label: s.name }))}
             onChange={(v) => apply({ ...applied, site: v ? Number(v) : undefined, compressor: undefined })}
           />
-          <Select
+          <FilterSelect
             label="Compressor"
             value={applied.compressor}
             options={compressorOptions.map((c) => ({ value: String(c.id), label: c.name }))}
             onChange={(v) => apply({ ...applied, compressor: v ? Number(v) : undefined })}
           />
-          <Select
+          <FilterSelect
             label="Priority"
             value={applied.priority}
             options={priorities.map((p) => ({ value: p, label: priorityWords[p] }))}
             onChange={(v) => apply({ ...applied, priority: (v || undefined) as Priority | undefined })}
           />
-          <Select
+          <FilterSelect
             label="Kind"
             value={applied.kind}
             options={eventKinds.map((k) => ({ value: k, label: eventKindLabels[k] }))}
@@ -298,40 +299,6 @@ export function EventLog({
           </span>
         )}
       </nav>
-    </div>
-  );
-}
-
-function Select({
-  label,
-  value,
-  options,
-  onChange,
-}: {
-  label: string;
-  value: string | number | undefined;
-  options: { value: string; label: string }[];
-  onChange: (value: string) => void;
-}) {
-  const id = useId();
-  return (
-    <div>
-      <label htmlFor={id} className="block text-xs font-semibold text-muted">
-        {label}
-      </label>
-      <select
-        id={id}
-        value={value === undefined ? "" : String(value)}
-        onChange={(e) => onChange(e.target.value)}
-        className="mt-0.5 rounded border border-line bg-white px-2 py-1 text-sm text-ink"
-      >
-        <option value="">All</option>
-        {options.map((o) => (
-          <option key={o.value} value={o.value}>
-            {o.label}
-          </option>
-        ))}
-      </select>
     </div>
   );
 }
