@@ -396,6 +396,10 @@ async function main() {
   sqlite
     .prepare("INSERT INTO compressor_models (name, stages, rated_delivery_lpm, rated_pressure_bar, created_at) VALUES ('B', 4, 300, 420, ?)")
     .run(now);
+  // The live socket's token names user 1; the hub keeps it open only while that account exists and is enabled.
+  sqlite
+    .prepare("INSERT INTO users (id, email, name, password_hash, role, created_at, updated_at) VALUES (1, 'bench@airkeep.demo', 'Bench', '-', 'viewer', ?, ?)")
+    .run(now, now);
   const devices: Device[] = [];
   const ins = sqlite.prepare(
     `INSERT INTO compressors (site_id, model_id, name, serial, device_id, device_secret_hash, stop_pressure_bar, restart_pressure_bar, created_at, updated_at)

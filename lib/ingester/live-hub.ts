@@ -1,7 +1,7 @@
 import http from "node:http";
 import type net from "node:net";
 import { WebSocket, WebSocketServer } from "ws";
-import { verifyLiveToken } from "@/lib/live-token";
+import { type LiveTokenClaims, verifyLiveToken } from "@/lib/live-token";
 import type { LiveMessage } from "@/shared/live";
 import type { DeviceDirectory } from "./device-directory";
 import type { LiveBoard } from "./live-board";
@@ -22,6 +22,8 @@ export type LiveHubOptions = {
   pingMs?: number;
   /** The connection is closed (code 4001) after this long, so a revoked user or display link drops off. */
   maxConnectionMs?: number;
+  /** Checked for every open connection at each ping: false closes it (code 4003), e.g. a revoked display link. */
+  stillAllowed?: (claims: LiveTokenClaims) => boolean;
   maxClients?: number;
   /** A client this far behind is dropped; it reconnects and gets a fresh snapshot. */
   maxBufferedBytes?: number;
@@ -34,6 +36,8 @@ export type LiveHubStats = {
   refusedToken: number;
   refusedOrigin: number;
   refusedFull: number;
+  /** Open connections closed because their user or display link lost access. */
+  closedRevoked: number;
   droppedSlow: number;
   updatesSent: number;
 };
@@ -46,7 +50,7 @@ export type LiveHub = {
   close(): Promise<void>;
 };
 
-type Conn = { ws: WebSocket; sites: Set<number> | null; alive: boolean; lifetime: NodeJS.Timeout };
+type Conn = { ws: WebSocket; claims: LiveTokenClaims; sites: Set<number> | null; alive: boolean; lifetime: NodeJS.Timeout };
 
 export function defaultAllowedOrigins(env: Record<string, string | undefined> = process.env): string[] {
   const explicit = env.LIVE_ALLOWED_ORIGINS?.split(",")
@@ -79,6 +83,7 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
     refusedToken: 0,
     refusedOrigin: 0,
     refusedFull: 0,
+    closedRevoked: 0,
     droppedSlow: 0,
     updatesSent: 0,
   };
@@ -130,6 +135,7 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
       s.accepted++;
       const c: Conn = {
         ws,
+        claims,
         sites: claims.siteIds ? new Set(claims.siteIds) : null,
         alive: true,
         lifetime: setTimeout(() => ws.close(4001, "token lifetime over: reconnect"), maxConnectionMs),
@@ -158,6 +164,11 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
     for (const c of conns) {
       if (!c.alive) {
         c.ws.terminate();
+        continue;
+      }
+      if (opts.stillAllowed && !opts.stillAllowed(c.claims)) {
+        s.closedRevoked++;
+        c.ws.close(4003, "access revoked");
         continue;
       }
       c.alive = false;
