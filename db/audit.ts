@@ -10,6 +10,8 @@ export type AuditEntry = {
   targetType?: string;
   targetId?: string | number;
   siteId?: number | null;
+  /** Set when the change concerns one compressor, so its event-log entry links to it. */
+  compressorId?: number | null;
   ip?: string;
   details?: Record<string, unknown>;
 };
@@ -19,6 +21,11 @@ const auditSentences: Record<string, (e: AuditEntry) => string> = {
   "auth.sign_in_failed": (e) => `Failed sign-in for ${e.actor} (${String(e.details?.reason ?? "wrong password")})`,
   "auth.sign_in_throttled": (e) => `Sign-in for ${e.actor} refused: too many failures`,
   "auth.sign_out": (e) => `${e.actor} signed out`,
+  "threshold.update": (e) => {
+    const n = Array.isArray(e.details?.changes) ? e.details.changes.length : 0;
+    const reason = typeof e.details?.reason === "string" ? `: ${e.details.reason}` : "";
+    return `${e.actor} changed ${n} threshold limit${n === 1 ? "" : "s"} of ${String(e.details?.label ?? `${e.targetType} ${e.targetId}`)}${reason}`;
+  },
 };
 
 function describe(e: AuditEntry): string {
@@ -37,6 +44,7 @@ export function writeAudit(db: Db, entry: AuditEntry, ts = Date.now()): void {
     action: entry.action,
     text: describe(entry),
     siteId: entry.siteId ?? null,
+    compressorId: entry.compressorId ?? null,
     actor: entry.actor,
     details: entry.details ?? null,
   });

@@ -272,6 +272,7 @@ export function saveThresholdSet(
           targetType: data.scopeType === "model" ? "compressor_model" : "compressor",
           targetId: data.scopeId,
           siteId: info.siteId,
+          compressorId: data.scopeType === "compressor" ? data.scopeId : null,
           ip: actor.ip ?? "",
           details: {
             label: info.label,

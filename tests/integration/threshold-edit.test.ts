@@ -73,6 +73,7 @@ describe("saving a set", () => {
 
     const event = db.$client.prepare("SELECT kind, action, actor, ts, text FROM events WHERE action = 'threshold.update'").get();
     expect(event).toMatchObject({ kind: "threshold", action: "threshold.update", actor: engineer.email, ts: at(10) });
+    expect((event as { text: string }).text).toMatch(new RegExp(`^${engineer.email} changed 1 threshold limit of .+: Cooler fitted, warn earlier$`));
 
     const history = thresholdHistory(db, "model", fleet.modelId, engineer)!;
     expect(history).toHaveLength(1);
