@@ -1,4 +1,4 @@
-import { and, asc, eq, inArray } from "drizzle-orm";
+import { and, asc, eq } from "drizzle-orm";
 import type { Role } from "@/shared/roles";
 import type { UnitPreference } from "@/shared/units";
 import type { UserDto } from "@/shared/user-schema";
@@ -106,13 +106,7 @@ export function setUserUnits(db: Db, id: number, units: UnitPreference, now = Da
     .run();
 }
 
-export function setUserPassword(db: Db, id: number, passwordHash: string, now = Date.now()): void {
-  db.update(users).set({ passwordHash, updatedAt: now }).where(eq(users.id, id)).run();
-}
 
-export function countAdmins(db: Db): number {
-  return db.select({ id: users.id }).from(users).where(inArray(users.role, ["admin"])).all().length;
-}
 
 /** Administrators who can still sign in; the last one may not be demoted or disabled. */
 export function countEnabledAdmins(db: Db): number {

@@ -64,9 +64,6 @@ export function nextAlarmState(state: AlarmState, input: AlarmInput): AlarmState
   }
 }
 
-/** Annunciated states: the ones that show on the active list and may notify. */
-export const isAnnunciated = (s: AlarmState) =>
-  s === "active-unacknowledged" || s === "active-acknowledged" || s === "cleared-unacknowledged";
 
 /** An acknowledged alarm still active after reAlarmS is announced again as unacknowledged. */
 export function dueForReAlarm(state: AlarmState, acknowledgedAt: number | null, now: number, reAlarmS: number): boolean {
