@@ -141,3 +141,74 @@ export function blockReader(db: Db, compressorId: number, stages: number, signal
   );
   return (from, to) => stmt.get({ id: compressorId, from, to })!;
 }
+
+/** Readings stored in [from, to). */
+export function rawCount(db: Db, compressorId: number, from: number, to: number): number {
+  const s = prepared<[{ id: number; from: number; to: number }], number>(
+    db,
+    "SELECT count(*) FROM readings WHERE compressor_id = $id AND ts >= $from AND ts < $to",
+    (x) => x.pluck(),
+  );
+  return s.get({ id: compressorId, from, to }) ?? 0;
+}
+
+/**
+ * Column order of a minute summary row: bucket start, readings, first and last reading's time, run-state and starts
+ * ranges, then min, max, n of each signal in ROLLUP_SIGNALS order from M.signals on.
+ */
+export const M = { bucketTs: 0, n: 1, firstTs: 2, lastTs: 3, minRunState: 4, maxRunState: 5, minStarts: 6, maxStarts: 7, signals: 8 } as const;
+export type MinuteRow = (number | null)[];
+
+const MINUTE_SELECT = [
+  "bucket_ts",
+  "n",
+  "first_ts",
+  "last_ts",
+  "min_run_state",
+  "max_run_state",
+  "min_starts",
+  "max_starts",
+  ...ROLLUP_SIGNALS.flatMap(([, c]) => [`${c}_min`, `${c}_max`, `${c}_n`]),
+].join(", ");
+
+/** Up to `limit` 1-minute buckets starting in [from, to), as minute summary rows, in time order. */
+export function readMinuteChunk(db: Db, compressorId: number, from: number, to: number, limit: number): MinuteRow[] {
+  const s = prepared<[Range], MinuteRow>(
+    db,
+    `SELECT ${MINUTE_SELECT} FROM readings_1m
+     WHERE compressor_id = $id AND bucket_ts >= $from AND bucket_ts < $to ORDER BY bucket_ts LIMIT $limit`,
+    (x) => x.raw(true),
+  );
+  return s.all({ id: compressorId, from, to, limit });
+}
+
+const signalIndex = new Map<string, number>(ROLLUP_SIGNALS.map(([k], i) => [k, i]));
+
+/**
+ * A minute summary as the BlockStats of its raw readings (blockReader over the same minute gives the same answer), or
+ * null when it cannot say: a bucket written before its ranges were kept, or a final-stage temperature that comes from
+ * different stages within the minute. Its gaps count is non-zero exactly when blockReader's is.
+ */
+export function minuteBlock(u: MinuteRow, stages: number, signals: readonly AlarmSignal[]): BlockStats | null {
+  const n = u[M.n] as number;
+  if (n > 0 && u[M.firstTs] === null) return null;
+  const out: BlockStats = [n, u[M.firstTs]!, u[M.lastTs]!, u[M.minRunState]!, u[M.maxRunState]!, u[M.minStarts]!, u[M.maxStarts]!, 0];
+  let gaps = 0;
+  for (const signal of signals) {
+    let i: number;
+    if (signal === "finalStageC") {
+      // The highest fitted stage that reports; every reading must report it, else the stage differs between readings.
+      i = -1;
+      for (let st = Math.max(1, Math.min(4, stages)); st >= 1 && i < 0; st--) {
+        const k = signalIndex.get(`stage${st}C`)!;
+        if (((u[M.signals + 3 * k + 2] as number | null) ?? 0) > 0) i = k;
+      }
+      if (i >= 0 && u[M.signals + 3 * i + 2] !== n) return null;
+    } else i = signalIndex.get(signal)!;
+    const cnt = i < 0 ? 0 : ((u[M.signals + 3 * i + 2] as number | null) ?? 0);
+    if (cnt < n) gaps += n - cnt;
+    out.push(cnt > 0 ? u[M.signals + 3 * i]! : null, cnt > 0 ? u[M.signals + 3 * i + 1]! : null);
+  }
+  out[B.gaps] = gaps;
+  return out;
+}

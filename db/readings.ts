@@ -68,6 +68,11 @@ type Acc = {
   coveredMs: number;
   runMs: number;
   trippedMs: number;
+  firstTs: number | null;
+  minRunState: number | null;
+  maxRunState: number | null;
+  minStarts: number | null;
+  maxStarts: number | null;
   lastTs: number | null;
   hourMeterH: number | null;
   starts: number | null;
@@ -89,6 +94,11 @@ function newAcc(compressorId: number, bucketTs: number): Acc {
     coveredMs: 0,
     runMs: 0,
     trippedMs: 0,
+    firstTs: null,
+    minRunState: null,
+    maxRunState: null,
+    minStarts: null,
+    maxStarts: null,
     lastTs: null,
     hourMeterH: null,
     starts: null,
@@ -111,6 +121,12 @@ function rollupUpsertSql(table: string): string {
   }
   cols.push("covered_s", "run_s", "tripped_s");
   sets.push("covered_s = covered_s + excluded.covered_s", "run_s = run_s + excluded.run_s", "tripped_s = tripped_s + excluded.tripped_s");
+  // A bucket written before these columns existed keeps them null: its ranges are unknown, not those of the new rows.
+  const known = "(n = 0 OR first_ts IS NOT NULL)";
+  for (const [c, op] of [["first_ts", "<"], ["min_run_state", "<"], ["max_run_state", ">"], ["min_starts", "<"], ["max_starts", ">"]] as const) {
+    cols.push(c);
+    sets.push(`${c} = CASE WHEN NOT ${known} THEN NULL WHEN ${c} IS NULL OR excluded.${c} ${op} ${c} THEN excluded.${c} ELSE ${c} END`);
+  }
   const newer = "excluded.last_ts IS NOT NULL AND (last_ts IS NULL OR excluded.last_ts >= last_ts)";
   for (const c of ["hour_meter_h", "starts", "last_run_state", "last_motor_on", "last_ts"]) {
     cols.push(c);
@@ -125,6 +141,7 @@ function accParams(a: Acc): unknown[] {
   const p: unknown[] = [a.compressorId, a.bucketTs, a.n];
   for (let i = 0; i < SIGNAL_COUNT; i++) p.push(a.min[i], a.max[i], a.sum[i], a.cnt[i]);
   p.push(a.coveredMs / 1000, a.runMs / 1000, a.trippedMs / 1000);
+  p.push(a.firstTs, a.minRunState, a.maxRunState, a.minStarts, a.maxStarts);
   p.push(a.hourMeterH, a.starts, a.lastRunState, a.lastMotorOn, a.lastTs);
   return p;
 }
@@ -221,6 +238,13 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
         if (mx === null || mx === undefined || v > mx) a.max[i] = v;
         a.sum[i]! += v;
         a.cnt[i]!++;
+      }
+      if (a.firstTs === null || r.ts < a.firstTs) a.firstTs = r.ts;
+      if (a.minRunState === null || r.runState < a.minRunState) a.minRunState = r.runState;
+      if (a.maxRunState === null || r.runState > a.maxRunState) a.maxRunState = r.runState;
+      if (r.starts !== null) {
+        if (a.minStarts === null || r.starts < a.minStarts) a.minStarts = r.starts;
+        if (a.maxStarts === null || r.starts > a.maxStarts) a.maxStarts = r.starts;
       }
       if (a.lastTs === null || r.ts >= a.lastTs) {
         a.lastTs = r.ts;

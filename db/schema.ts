@@ -204,6 +204,12 @@ function rollupColumns() {
     runS: real("run_s").notNull().default(0),
     /** Seconds in the tripped state. */
     trippedS: real("tripped_s").notNull().default(0),
+    /** Device time of the earliest reading in the bucket; with the ranges below, a bucket's readings summed up exactly. */
+    firstTs: integer("first_ts"),
+    minRunState: integer("min_run_state"),
+    maxRunState: integer("max_run_state"),
+    minStarts: integer("min_starts"),
+    maxStarts: integer("max_starts"),
     /** Device time of the latest reading in the bucket, and its hour meter, starts and state. */
     lastTs: integer("last_ts"),
     hourMeterH: real("hour_meter_h"),

@@ -3,7 +3,7 @@
  * reaches past raw retention, 1-minute rollups. Reads one chunk at a time and hands the event loop back between
  * chunks, reporting progress, so other requests keep being served and a closed request stops the work.
  */
-import { B, blockReader, firstRawTs, rawReader, readRollupChunk } from "@/db/backtest-data";
+import { B, blockReader, firstRawTs, M, minuteBlock, rawCount, rawReader, readMinuteChunk, readRollupChunk } from "@/db/backtest-data";
 import type { Db } from "@/db/client";
 import { getCompressor } from "@/db/compressors";
 import { readSetRows } from "@/db/threshold-edit";
@@ -41,6 +41,8 @@ export type WindowOptions = {
   chunkRows?: number;
   /** Length of the stretches summed up in SQLite; default adapts to about 240 readings a stretch. */
   blockMs?: number;
+  /** Whether whole minutes are judged from their 1-minute summaries first (default true). */
+  minuteSummaries?: boolean;
   onProgress?: Progress;
   signal?: AbortSignal;
   onEvent?: (side: SideName, e: AlarmEvent) => void;
@@ -118,52 +120,93 @@ export async function backtestWindow(db: Db, o: WindowOptions): Promise<WindowRe
     /** Share of recent stretches that had to be read reading by reading (a moving average). */
     let busy = 0;
     let k = 0;
-    // Stretches end at the window's start, so the warm-up's readings are told apart from the window's.
-    for (const [segFrom, segTo] of [[rawFrom, Math.max(rawFrom, o.from)], [Math.max(rawFrom, o.from), o.to]] as const) {
-      let cursor = segFrom;
-      while (cursor < segTo) {
-        checkAbort(o.signal);
-        const end = Math.min(segTo, cursor + blockMs);
-        // A quiet stretch is summed up in SQLite and applied at once; a busy one is halved until its halves are
-        // quiet or short, and short busy ones are read reading by reading. Where almost every stretch is busy,
-        // summing first is skipped (but tried again now and then).
-        let n = 0;
-        let read = 0;
-        const readRows = (a: number, b: number) => {
-          let at = a;
-          for (;;) {
-            const chunk = reader.chunk(at, b, chunkRows);
-            for (let i = 0; i < chunk.length; i++) core.feedRaw(chunk[i]!, at);
-            n += chunk.length;
-            read += chunk.length;
-            if (chunk.length < chunkRows) break;
-            at += (chunk[chunk.length - 1]![0] as number) + 1;
-          }
-        };
-        const stretch = (a: number, b: number) => {
-          const stats = blocks(a, b);
-          const count = stats[B.n] as number;
-          if (core.feedBlock(stats)) n += count;
-          else if (count <= MIN_STRETCH || b - a < 2) readRows(a, b);
-          else {
-            const mid = a + Math.floor((b - a) / 2);
-            stretch(a, mid);
-            stretch(mid, b);
-          }
-        };
-        if (busy > 0.7 && k++ % 8 !== 0) readRows(cursor, end);
-        else stretch(cursor, end);
-        busy = busy * 0.9 + (n > 0 ? (0.1 * read) / n : 0);
-        if (segFrom >= o.from) rows += n;
+    let read = 0;
+
+    const pause = async (cursor: number) => {
+      checkAbort(o.signal);
+      if (performance.now() - lastYield > 25) {
+        progress(cursor, "raw");
+        await handBack();
+        lastYield = performance.now();
+      }
+    };
+    const readRows = (a: number, b: number): number => {
+      let n = 0;
+      let at = a;
+      for (;;) {
+        const chunk = reader.chunk(at, b, chunkRows);
+        for (let i = 0; i < chunk.length; i++) core.feedRaw(chunk[i]!, at);
+        n += chunk.length;
+        if (chunk.length < chunkRows) break;
+        at += (chunk[chunk.length - 1]![0] as number) + 1;
+      }
+      read += n;
+      return n;
+    };
+    // A quiet stretch is summed up in SQLite and applied at once; a busy one is halved until its halves are quiet or
+    // short, and short busy ones are read reading by reading.
+    const stretch = (a: number, b: number): number => {
+      const stats = blocks(a, b);
+      const count = stats[B.n] as number;
+      if (core.feedBlock(stats)) return count;
+      if (count <= MIN_STRETCH || b - a < 2) return readRows(a, b);
+      const mid = a + Math.floor((b - a) / 2);
+      return stretch(a, mid) + stretch(mid, b);
+    };
+    /** [a, b) in stretches summed up in SQLite; where almost every stretch is busy, summing first is skipped (but tried again now and then). */
+    const stretches = async (a: number, b: number): Promise<number> => {
+      let total = 0;
+      let cursor = a;
+      while (cursor < b) {
+        const end = Math.min(b, cursor + blockMs);
+        const before = read;
+        const n = busy > 0.7 && k++ % 8 !== 0 ? readRows(cursor, end) : stretch(cursor, end);
+        busy = busy * 0.9 + (n > 0 ? (0.1 * (read - before)) / n : 0);
+        total += n;
         cursor = end;
         // About 240 readings a stretch, whatever the reporting rate.
         if (!o.blockMs) blockMs = Math.min(3_600_000, Math.max(5_000, n === 0 ? blockMs * 2 : Math.round((blockMs * 240) / n)));
-        if (performance.now() - lastYield > 25) {
-          progress(cursor, "raw");
-          await handBack();
-          lastYield = performance.now();
-        }
+        await pause(cursor);
       }
+      return total;
+    };
+    /**
+     * Whole minutes [a, b) from their 1-minute summaries (written with the readings, so no reading needs reading to
+     * know a quiet minute); a busy minute is read as above. A run of minutes whose summaries do not add up to the raw
+     * readings stored (pruned in part, or written by other means) is summed up from the readings instead.
+     */
+    const minutes = async (a: number, b: number): Promise<number> => {
+      let total = 0;
+      let cursor = a;
+      while (cursor < b) {
+        const chunk = readMinuteChunk(db, o.compressorId, cursor, b, chunkRows);
+        const end = chunk.length < chunkRows ? b : (chunk[chunk.length - 1]![M.bucketTs] as number) + MINUTE;
+        let summed = 0;
+        for (const u of chunk) summed += u[M.n] as number;
+        if (summed !== rawCount(db, o.compressorId, cursor, end)) total += await stretches(cursor, end);
+        else {
+          for (const u of chunk) {
+            const at = u[M.bucketTs] as number;
+            const stats = minuteBlock(u, o.stages, signals);
+            if (stats && core.feedBlock(stats)) total += stats[B.n] as number;
+            else total += (u[M.n] as number) > 4 * MIN_STRETCH ? stretch(at, at + MINUTE) : readRows(at, at + MINUTE);
+            await pause(at + MINUTE);
+          }
+        }
+        cursor = end;
+      }
+      return total;
+    };
+
+    // Stretches end at the window's start, so the warm-up's readings are told apart from the window's.
+    for (const [segFrom, segTo] of [[rawFrom, Math.max(rawFrom, o.from)], [Math.max(rawFrom, o.from), o.to]] as const) {
+      if (segFrom >= segTo) continue;
+      const first = Math.ceil(segFrom / MINUTE) * MINUTE;
+      const last = Math.floor(segTo / MINUTE) * MINUTE;
+      let n: number;
+      if (o.minuteSummaries === false || first >= last) n = await stretches(segFrom, segTo);
+      else n = (await stretches(segFrom, first)) + (await minutes(first, last)) + (await stretches(last, segTo));
+      if (segFrom >= o.from) rows += n;
     }
     if (rows > 0) sources.push({ kind: "raw", from: Math.max(o.from, rawFrom), to: o.to, rows });
     // The chart of the raw stretch comes from its 1-minute rollups (mean, min and max per minute, written with it).

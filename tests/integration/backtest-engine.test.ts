@@ -227,6 +227,8 @@ describe("the backtest raises what the live engine raises", () => {
         chunkRows: 5 + Math.floor(r() * 300),
         // Stretches summed up in SQLite, of every length from a few readings to most of the series (or adaptive).
         blockMs: pick(r, [undefined, 3_000, 10_000, 30_000, 120_000, 600_000]),
+        // Whole minutes judged from their summaries first, or every stretch summed up from the readings.
+        minuteSummaries: r() < 0.7,
         onEvent: (side, e: AlarmEvent) => events[side].push({ kind: e.kind, key: e.key, ts: e.ts }),
       });
 

@@ -132,6 +132,21 @@ describe("reading store", () => {
     expect(h.delivery_bar_sum).toBeCloseTo(200 + 210 + 220 + 215 + 230 + 228, 9);
   });
 
+  it("keeps each bucket's first reading time and its run-state and starts ranges, across batches", () => {
+    const store = createReadingStore(t.db);
+    store.insert([r4, r3]);
+    store.insert([r2, r5]);
+    store.insert([r1, r6]);
+    expect(rollup(t, "readings_1m", 1, T)).toMatchObject({ n: 2, first_ts: r1.ts, min_run_state: 3, max_run_state: 3, min_starts: 5, max_starts: 5 });
+    expect(rollup(t, "readings_1m", 1, T + 60 * S)).toMatchObject({ first_ts: r3.ts, last_ts: r4.ts, min_run_state: 0, max_run_state: 0 });
+    expect(rollup(t, "readings_1h", 1, T)).toMatchObject({ n: 6, first_ts: r1.ts, min_run_state: 0, max_run_state: 4, min_starts: 5, max_starts: 6 });
+
+    // A bucket written before the ranges were kept stays unknown rather than taking the ranges of its newer readings.
+    t.db.$client.prepare("UPDATE readings_1m SET first_ts = NULL, min_run_state = NULL, max_run_state = NULL, min_starts = NULL, max_starts = NULL WHERE bucket_ts = ?").run(T + 420 * S);
+    store.insert([reading(1, T + 450 * S, { runState: 3, starts: 7 })]);
+    expect(rollup(t, "readings_1m", 1, T + 420 * S)).toMatchObject({ n: 2, first_ts: null, min_run_state: null, max_run_state: null, min_starts: null, max_starts: null });
+  });
+
   it("folds readings into the rollups without keeping raw rows, and recognises a replay of them", () => {
     const store = createReadingStore(t.db);
     const rows = [r1, r2, r3, r4].map((r) => ({ ...r, compressorId: 2 }));
