@@ -1,4 +1,5 @@
 import path from "node:path";
+import { bundleNodeProgram, programFlags } from "./node-bundle";
 import { runJob, startProcess } from "./processes";
 
 const tsx = path.resolve("node_modules/.bin/tsx");
@@ -13,17 +14,20 @@ export type ServiceOptions = {
 /** Starts broker (unless MQTT_URL names another), ingester, mail, web and optionally the simulator; returns where each listens. */
 export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions): Promise<string[]> {
   const where: string[] = [];
+  // The long-running server programs run bundled, on plain Node (source maps keep stack traces pointing at the sources).
+  const program = async (name: string) => [...programFlags(name), await bundleNodeProgram(`lib/${name}/main.ts`, `.build/node/${name}.mjs`)];
   if (!env.MQTT_URL) {
     const port = env.MQTT_PORT ?? "1883";
-    startProcess("broker", tsx, ["lib/broker/main.ts"], env);
+    startProcess("broker", process.execPath, await program("broker"), env);
     env.MQTT_URL = `mqtt://127.0.0.1:${port}`;
+    env.MQTT_MAX_INFLIGHT ??= "none";
     where.push(`MQTT       ${env.MQTT_URL} (embedded broker)`);
   } else {
     where.push(`MQTT       ${env.MQTT_URL} (external broker)`);
   }
-  startProcess("ingester", tsx, ["lib/ingester/main.ts"], env);
+  startProcess("ingester", process.execPath, await program("ingester"), env);
   where.push(`Live       ws://${env.LIVE_HOST ?? "127.0.0.1"}:${env.LIVE_PORT ?? "3001"} (WebSocket hub)`);
-  startProcess("mail", tsx, ["lib/mail/main.ts"], env);
+  startProcess("mail", process.execPath, await program("mail"), env);
   where.push(
     env.SMTP_URL
       ? "Mail       alarm e-mail via SMTP_URL"

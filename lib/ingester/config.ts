@@ -26,7 +26,9 @@ export function ingesterOptionsFromEnv(db: Db, env: Env = process.env): Ingester
       maxAgeMs: num(env, "INGEST_MAX_AGE_S", 7 * 86_400, 1) * 1000,
     },
     flushMs: num(env, "INGEST_FLUSH_MS", 100, 1),
-    batchRows: num(env, "INGEST_BATCH_ROWS", 2_500, 1),
+    batchRows: num(env, "INGEST_BATCH_ROWS", 10_000, 1),
+    // The embedded broker caps nothing; a standard broker's default (Mosquitto: 20) unless told otherwise.
+    brokerInflightCap: env.MQTT_MAX_INFLIGHT === "none" ? null : num(env, "MQTT_MAX_INFLIGHT", 20, 1),
     commsTimeoutMs: num(env, "COMMS_TIMEOUT_S", 60, 1) * 1000,
     retentionMs: num(env, "RETENTION_DAYS", 30, 1) * 86_400_000,
     live:

@@ -30,7 +30,10 @@ export type IngesterOptions = {
   timeLimits?: TimeLimits;
   /** Longest a received reading waits before its transaction commits. */
   flushMs?: number;
-  /** A batch this large commits at once (keeps each commit short so the WebSocket fan-out stays responsive). */
+  /**
+   * A batch this large commits at once. Each commit writes every page it touched (about one per compressor), so at
+   * high rates larger batches cost less per reading; at a few thousand a second flushMs ends a batch long before.
+   */
   batchRows?: number;
   commsTimeoutMs?: number;
   commsSweepMs?: number;
@@ -44,6 +47,12 @@ export type IngesterOptions = {
   protocolVersion?: 4 | 5;
   /** How long an MQTT 5 broker keeps the session while the ingester is away. Default 7 days. */
   sessionExpirySeconds?: number;
+  /**
+   * The broker's cap on unacknowledged QoS 1 messages to this client (Mosquitto: 20 by default). Near it, pending
+   * readings commit on a short lull rather than at flushMs, since the broker sends nothing more until they are
+   * acknowledged. null: the broker sets none (the embedded broker), and commits come by size and age only. Default 20.
+   */
+  brokerInflightCap?: number | null;
   /** PUBACK only once the message is committed, so a crash loses nothing the broker still holds. Default true. */
   ackAfterCommit?: boolean;
   live?: {
@@ -99,8 +108,6 @@ type PendingAck = { messageId: number; generation: number };
 type SendPacket = (packet: { cmd: string; messageId?: number }, cb?: (err?: Error) => void, ...rest: unknown[]) => void;
 
 const IDLE_FLUSH_MS = 2;
-// Brokers cap unacknowledged messages per client (Mosquitto: 20 by default); near that, commit on a short lull.
-const IDLE_FLUSH_ACKS = 16;
 const MAX_PENDING_ROWS = 200_000;
 
 export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
@@ -108,12 +115,14 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const log = opts.log ?? ((m: string) => console.log(`[ingester] ${m}`));
   const limits = opts.timeLimits ?? DEFAULT_TIME_LIMITS;
   const flushMs = opts.flushMs ?? 100;
-  const batchRows = opts.batchRows ?? 2_500;
+  const batchRows = opts.batchRows ?? 10_000;
   const commsTimeoutMs = opts.commsTimeoutMs ?? 60_000;
   const retentionMs = opts.retentionMs ?? 30 * 86_400_000;
   const pruneEveryMs = opts.pruneEveryMs ?? 60_000;
   const ackAfterCommit = opts.ackAfterCommit ?? true;
   const protocolVersion = opts.protocolVersion ?? 4;
+  const inflightCap = opts.brokerInflightCap === undefined ? 20 : opts.brokerInflightCap;
+  const idleFlushAcks = inflightCap === null ? Number.POSITIVE_INFINITY : Math.max(1, inflightCap - 4);
   const startedAt = Date.now();
 
   // Checkpoints run on their own thread (below), not inside this connection's commits.
@@ -203,7 +212,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     raw._sendPacket = (packet, cb, ...rest) => {
       if (packet.cmd !== "puback" || packet.messageId === undefined) return sendPacket(packet, cb, ...rest);
       pendingAcks.push({ messageId: packet.messageId, generation });
-      if (pendingAcks.length >= IDLE_FLUSH_ACKS) armIdleFlush();
+      if (pendingAcks.length >= idleFlushAcks) armIdleFlush();
       scheduleFlush();
       cb?.();
     };

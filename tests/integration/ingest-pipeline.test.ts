@@ -49,6 +49,8 @@ beforeAll(async () => {
     mqttUrl: url,
     password: INGEST_PASSWORD,
     flushMs: 30,
+    // As the demo runs it against the embedded broker: commits by size and age only.
+    brokerInflightCap: null,
     commsTimeoutMs: 1_500,
     commsSweepMs: 100,
     statusIntervalMs: 200,
