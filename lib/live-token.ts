@@ -4,7 +4,9 @@ import { createHmac, hkdfSync, randomBytes, timingSafeEqual } from "node:crypto"
 export const LIVE_TOKEN_TTL_MS = 60_000;
 const MAX_TTL_MS = 10 * 60_000;
 
-export type LiveTokenSubject = { userId: number; displayLinkId?: never } | { displayLinkId: number; userId?: never };
+export type LiveTokenSubject =
+  | { userId: number; /** The sign-in session the token was issued to; the socket ends with it. */ sessionId?: string; displayLinkId?: never }
+  | { displayLinkId: number; userId?: never; sessionId?: never };
 
 export type LiveTokenInput = LiveTokenSubject & {
   /** Sites the holder may see; null means every site. */
@@ -14,13 +16,14 @@ export type LiveTokenInput = LiveTokenSubject & {
 
 export type LiveTokenClaims = {
   userId: number | null;
+  sessionId: string | null;
   displayLinkId: number | null;
   siteIds: number[] | null;
   issuedAt: number;
   expiresAt: number;
 };
 
-type Payload = { v: 1; u?: number; d?: number; s: number[] | null; iat: number; exp: number; n: string };
+type Payload = { v: 1; u?: number; x?: string; d?: number; s: number[] | null; iat: number; exp: number; n: string };
 
 function signingKey(secret: string | undefined): Buffer {
   if (!secret) throw new Error("NEXTAUTH_SECRET is not set");
@@ -41,8 +44,10 @@ export function createLiveToken(input: LiveTokenInput, secret = process.env.NEXT
     exp: now + ttl,
     n: randomBytes(9).toString("base64url"),
   };
-  if (input.userId !== undefined) payload.u = input.userId;
-  else payload.d = input.displayLinkId;
+  if (input.userId !== undefined) {
+    payload.u = input.userId;
+    if (input.sessionId) payload.x = input.sessionId;
+  } else payload.d = input.displayLinkId;
   const body = Buffer.from(JSON.stringify(payload)).toString("base64url");
   return `${body}.${sign(signingKey(secret), body).toString("base64url")}`;
 }
@@ -74,8 +79,10 @@ export function verifyLiveToken(
   const hasLink = isId(p.d);
   if (hasUser === hasLink) return null;
   if (p.s !== null && !(Array.isArray(p.s) && p.s.every(isId))) return null;
+  if (p.x !== undefined && (!hasUser || typeof p.x !== "string" || p.x.length === 0 || p.x.length > 128)) return null;
   return {
     userId: hasUser ? (p.u as number) : null,
+    sessionId: p.x ?? null,
     displayLinkId: hasLink ? (p.d as number) : null,
     siteIds: p.s,
     issuedAt: p.iat,

@@ -12,9 +12,9 @@ import { INGEST_CLIENT_ID, INGEST_TOPIC, INGEST_USERNAME } from "@/lib/broker/in
 import { type ReadingInput, telemetryToReading } from "@/shared/telemetry";
 import { classifyMessage, DEFAULT_TIME_LIMITS, type RejectReason, rejectReasons, type TimeLimits } from "./classify";
 import { createAlarmEngine, type AlarmTransition } from "@/lib/alarms/engine";
-import type { LiveTokenClaims } from "@/lib/live-token";
 import { startCheckpointer } from "./checkpointer";
 import { createDeviceDirectory } from "./device-directory";
+import { liveAccessCheck } from "./live-access";
 import { LiveBoard } from "./live-board";
 import { type LiveHub, startLiveHub } from "./live-hub";
 import { createRateLimitedLog } from "./reject-log";
@@ -168,15 +168,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
 
   let hub: LiveHub | null = null;
   if (opts.live) {
-    const linkRevoked = db.$client.prepare("SELECT revoked_at IS NOT NULL AS revoked FROM display_links WHERE id = ?").pluck();
-    const userDisabled = db.$client.prepare("SELECT disabled FROM users WHERE id = ?").pluck();
-    // A revoked display link or a disabled account stops receiving live values at the next ping, not at token expiry.
-    const stillAllowed = (c: LiveTokenClaims): boolean => {
-      if (c.displayLinkId != null) return linkRevoked.get(c.displayLinkId) === 0;
-      if (c.userId != null) return userDisabled.get(c.userId) === 0;
-      return false;
-    };
-    hub = await startLiveHub({ board, directory, stillAllowed, ...opts.live, log: (m) => log(m) });
+    // Revoked access stops live values at the next ping, not at token expiry.
+    hub = await startLiveHub({ board, directory, stillAllowed: liveAccessCheck(db), ...opts.live, log: (m) => log(m) });
   }
   const notify = (compressorId: number) => hub?.notify(compressorId);
 

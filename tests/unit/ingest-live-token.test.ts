@@ -9,11 +9,17 @@ describe("live WebSocket token", () => {
     const t = createLiveToken({ userId: 12, siteIds: [3, 1, 3] }, SECRET, now);
     expect(verifyLiveToken(t, SECRET, now + 1_000)).toEqual({
       userId: 12,
+      sessionId: null,
       displayLinkId: null,
       siteIds: [1, 3],
       issuedAt: now,
       expiresAt: now + 60_000,
     });
+  });
+
+  it("carries the sign-in session it was issued to", () => {
+    const t = createLiveToken({ userId: 12, sessionId: "s-123", siteIds: null }, SECRET);
+    expect(verifyLiveToken(t, SECRET)).toMatchObject({ userId: 12, sessionId: "s-123", displayLinkId: null });
   });
 
   it("carries a display link with every site", () => {

@@ -11,6 +11,6 @@ export const GET = route(async (request: Request) => {
   const refusal = crossOriginRefusal(request);
   if (refusal) return refusal;
   const user = await requirePermission("board.view");
-  const token = createLiveToken({ userId: user.id, siteIds: user.siteIds });
+  const token = createLiveToken({ userId: user.id, sessionId: user.sessionId, siteIds: user.siteIds });
   return NextResponse.json({ url: liveHubUrl(request), token }, { headers: noStore });
 });
