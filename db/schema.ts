@@ -138,6 +138,8 @@ export const auditLog = sqliteTable(
     index("audit_log_ts_idx").on(t.ts),
     index("audit_log_action_actor_idx").on(t.action, t.actor, t.ts),
     index("audit_log_action_ip_idx").on(t.action, t.ip, t.ts),
+    // A thing's history (a threshold set's changes, newest first).
+    index("audit_log_target_idx").on(t.action, t.targetType, t.targetId, t.ts),
   ],
 );
 
