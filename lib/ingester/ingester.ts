@@ -213,14 +213,19 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
 
   function sendAcks(acks: PendingAck[]): void {
     if (!client.connected || acks.length === 0) return;
-    // One write for the whole batch rather than a system call per acknowledgement.
-    const stream = client.stream as { cork?: () => void; uncork?: () => void };
-    stream.cork?.();
+    // The whole batch in one buffer and one write. A PUBACK is 4 bytes (MQTT 3.1.1 §3.4; in MQTT 5 a success without
+    // properties may be sent the same way, §3.4.2.1).
+    const buf = Buffer.allocUnsafe(acks.length * 4);
+    let n = 0;
     for (const a of acks) {
       // An ack meant for an earlier connection would acknowledge some other message on this one.
-      if (a.generation === generation) sendPacket({ cmd: "puback", messageId: a.messageId });
+      if (a.generation !== generation) continue;
+      buf[n] = 0x40;
+      buf[n + 1] = 0x02;
+      buf.writeUInt16BE(a.messageId, n + 2);
+      n += 4;
     }
-    stream.uncork?.();
+    if (n > 0) client.stream.write(n === buf.length ? buf : buf.subarray(0, n));
   }
 
   function scheduleFlush(): void {
