@@ -124,7 +124,7 @@ export function adminInviteUser(db: Db, input: InviteUserInput, actor: AdminActo
           details: { after: userSnapshot(user) },
         });
         return user;
-      }),
+      }, { behavior: "immediate" }),
     { siteIds: ["One of the chosen sites no longer exists"] },
   );
 }
@@ -166,7 +166,7 @@ export function adminUpdateUser(db: Db, input: UpdateUserInput, actor: AdminActo
           details: { before: userSnapshot(before), after: userSnapshot(after), sessionsRevoked },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     { siteIds: ["One of the chosen sites no longer exists"] },
   );
 }
@@ -179,7 +179,7 @@ export function adminCreateSite(db: Db, input: SiteInput, actor: AdminActor, now
       const site = createSite(db, input, now);
       audit(db, actor, now, { action: "site.create", targetType: "site", targetId: site.id, siteId: site.id, details: { after: site } });
       return site;
-    }),
+    }, { behavior: "immediate" }),
   );
 }
 
@@ -192,7 +192,7 @@ export function adminUpdateSite(db: Db, id: number, input: SiteInput, actor: Adm
       if (!after) throw new AdminRefusal(404, "This site no longer exists.");
       audit(db, actor, now, { action: "site.update", targetType: "site", targetId: id, siteId: id, details: { before, after } });
       return after;
-    }),
+    }, { behavior: "immediate" }),
   );
 }
 
@@ -204,7 +204,7 @@ export function adminCreateModel(db: Db, input: CompressorModelInput, actor: Adm
       const model = createModel(db, input, now);
       audit(db, actor, now, { action: "compressor_model.create", targetType: "compressor_model", targetId: model.id, details: { after: model } });
       return model;
-    }),
+    }, { behavior: "immediate" }),
   );
 }
 
@@ -230,7 +230,7 @@ export function adminUpdateModel(
       if (!after) throw new AdminRefusal(404, "This model no longer exists.");
       audit(db, actor, now, { action: "compressor_model.update", targetType: "compressor_model", targetId: id, details: { before, after } });
       return after;
-    }),
+    }, { behavior: "immediate" }),
   );
 }
 
@@ -277,7 +277,7 @@ export function adminCreateCompressor(db: Db, input: CompressorInput, actor: Adm
           details: { after: compressorSnapshot(created) },
         });
         return created;
-      }),
+      }, { behavior: "immediate" }),
     missingSiteOrModel,
   );
 }
@@ -305,7 +305,7 @@ export function adminUpdateCompressor(
           details: { before: compressorSnapshot(before), after: compressorSnapshot(after) },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     missingSiteOrModel,
   );
 }
@@ -330,5 +330,5 @@ export function adminSetDeviceCredential(
       details: { deviceId: before.deviceId, replacedEarlier: before.hasDeviceCredential },
     });
     return { ...before, hasDeviceCredential: true };
-  });
+  }, { behavior: "immediate" });
 }

@@ -162,7 +162,7 @@ export function adminCreateContact(db: Db, input: ContactInput, actor: AdminActo
         const after = getContact(db, id)!;
         audit(db, actor, now, { action: "contact.create", targetType: "contact", targetId: id, details: { label: after.name, after: contactSnapshot(after) } });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     { userId: ["This account no longer exists"] },
   );
 }
@@ -185,7 +185,7 @@ export function adminUpdateContact(db: Db, id: number, input: ContactInput, acto
           details: { label: after.name, before: contactSnapshot(before), after: contactSnapshot(after) },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     { userId: ["This account no longer exists"] },
   );
 }
@@ -203,7 +203,7 @@ export function adminDeleteContact(db: Db, id: number, actor: AdminActor, now = 
       details: { label: before.name, before: contactSnapshot(before), rulesRemoved: before.ruleCount, rotaLinesRemoved: before.rotaCount },
     });
     return { id };
-  });
+  }, { behavior: "immediate" });
 }
 
 function ruleValues(input: RuleInput) {
@@ -248,7 +248,7 @@ export function adminCreateRule(db: Db, input: RuleInput, actor: AdminActor, now
           details: { label: ruleLabel(after), after: ruleSnapshot(after) },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     ruleRefs,
   );
 }
@@ -272,7 +272,7 @@ export function adminUpdateRule(db: Db, id: number, input: RuleInput, actor: Adm
           details: { label: ruleLabel(after), before: ruleSnapshot(before), after: ruleSnapshot(after) },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     ruleRefs,
   );
 }
@@ -290,7 +290,7 @@ export function adminDeleteRule(db: Db, id: number, actor: AdminActor, now = Dat
       details: { label: ruleLabel(before), before: ruleSnapshot(before) },
     });
     return { id };
-  });
+  }, { behavior: "immediate" });
 }
 
 const rotaSnapshot = (e: RotaEntryDto) => ({
@@ -327,7 +327,7 @@ export function adminCreateRotaEntry(db: Db, input: RotaEntryInput, actor: Admin
           details: { label: rotaLabel(after), after: rotaSnapshot(after) },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     rotaRefs,
   );
 }
@@ -351,7 +351,7 @@ export function adminUpdateRotaEntry(db: Db, id: number, input: RotaEntryInput, 
           details: { label: rotaLabel(after), before: rotaSnapshot(before), after: rotaSnapshot(after) },
         });
         return after;
-      }),
+      }, { behavior: "immediate" }),
     rotaRefs,
   );
 }
@@ -369,7 +369,7 @@ export function adminDeleteRotaEntry(db: Db, id: number, actor: AdminActor, now 
       details: { label: rotaLabel(before), before: rotaSnapshot(before) },
     });
     return { id };
-  });
+  }, { behavior: "immediate" });
 }
 
 // ---- Demo -------------------------------------------------------------------------------------------
@@ -484,6 +484,6 @@ export function seedDemoContacts(db: Db, now = Date.now()): { contacts: number; 
       created.rota++;
     }
     db.insert(settings).values({ key: DEMO_MARKER, value: String(now), updatedAt: now }).run();
-  });
+  }, { behavior: "immediate" });
   return created;
 }

@@ -141,6 +141,6 @@ export function seedDemoThresholds(db: Db, now = Date.now()): SeedThresholdsResu
       const c = tx.select({ id: compressors.id }).from(compressors).where(eq(compressors.deviceId, deviceId)).get();
       if (c) addSet("compressor", c.id, limits);
     }
-  });
+  }, { behavior: "immediate" });
   return created;
 }

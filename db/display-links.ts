@@ -107,7 +107,7 @@ export function createDisplayLink(
       now,
     );
     return { link: getDisplayLink(db, id)!, token };
-  });
+  }, { behavior: "immediate" });
 }
 
 export function revokeDisplayLink(db: Db, id: number, actor: DisplayLinkActor, now = Date.now()): DisplayLinkDto {
@@ -130,7 +130,7 @@ export function revokeDisplayLink(db: Db, id: number, actor: DisplayLinkActor, n
       now,
     );
     return { ...before, revokedAt: now };
-  });
+  }, { behavior: "immediate" });
 }
 
 export type DisplayAccess =

@@ -196,7 +196,7 @@ export function insertReceived(db: Db, mail: NewReceivedMail): MailReceivedRow {
       .values({ ...mail, duplicateOf: first?.id ?? null })
       .returning()
       .get();
-  });
+  }, { behavior: "immediate" });
 }
 
 export function receivedByMessageId(db: Db, messageId: string): MailReceivedRow[] {

@@ -323,7 +323,9 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
   return {
     insert(rows, opts) {
       if (rows.length === 0) return { inserted: 0, duplicates: 0 };
-      return insertTx(rows, opts?.keepRaw ?? true);
+      // Immediate: a deferred transaction that reads first fails outright (SQLITE_BUSY_SNAPSHOT) if another process
+      // commits before its first write; waiting for the write lock up front lets the busy timeout handle it.
+      return insertTx.immediate(rows, opts?.keepRaw ?? true);
     },
     prune(now, retentionMs, opts = {}) {
       const chunk = Math.max(1, opts.chunkRows ?? 5000);

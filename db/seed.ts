@@ -99,7 +99,7 @@ export function seedDemo(db: Db, knownSecrets: Map<string, string> = new Map(), 
     }
 
     tx.insert(settings).values({ key: "organisation.name", value: demoOrganisation, updatedAt: now }).onConflictDoNothing().run();
-  });
+  }, { behavior: "immediate" });
   seedDemoThresholds(db, now);
   seedDemoContacts(db, now);
 

@@ -73,7 +73,7 @@ export function createUser(db: Db, input: NewUser, now = Date.now()): UserDto {
         .run();
     }
     return toDto(row, input.siteIds);
-  });
+  }, { behavior: "immediate" });
 }
 
 export function updateUserAccess(
@@ -96,7 +96,7 @@ export function updateUserAccess(
         .run();
     }
     return toDto(row, input.siteIds);
-  });
+  }, { behavior: "immediate" });
 }
 
 export function setUserUnits(db: Db, id: number, units: UnitPreference, now = Date.now()): void {

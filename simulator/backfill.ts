@@ -204,7 +204,7 @@ export function backfill(opts: BackfillOptions): BackfillResult {
         }
         if (alarmEngine) {
           const batch = old.length ? old.concat(raw) : raw;
-          if (batch.length) opts.db.$client.transaction(() => alarmEngine.onReadings(batch, batch[batch.length - 1]!.ts))();
+          if (batch.length) opts.db.$client.transaction(() => alarmEngine.onReadings(batch, batch[batch.length - 1]!.ts)).immediate();
           for (const e of evs) {
             if (e.kind === "comms_lost") alarmEngine.onCommsLost(e.compressorId, e.ts, e.ts);
             else if (e.kind === "comms_restored") alarmEngine.onCommsRestored(e.compressorId, e.ts, e.ts);

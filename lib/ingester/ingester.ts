@@ -256,7 +256,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     const t0 = performance.now();
     let res: ReturnType<typeof commit>;
     try {
-      res = commit(rows, events, states);
+      res = commit.immediate(rows, events, states);
       st.stored += res.inserted;
       if (res.duplicates > 0) {
         rejects.duplicate += res.duplicates;

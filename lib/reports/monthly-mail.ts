@@ -41,7 +41,7 @@ export function queueMonthlyReportMails(db: Db, now: number, opts: { from: strin
         );
         if (res.inserted) queued++;
       }
-    });
+    }, { behavior: "immediate" });
   }
   return { reports, queued };
 }

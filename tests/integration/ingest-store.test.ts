@@ -1,3 +1,4 @@
+import { Worker } from "node:worker_threads";
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
 import { createReadingStore } from "@/db/readings";
 import type { ReadingInput } from "@/shared/telemetry";
@@ -145,6 +146,30 @@ describe("reading store", () => {
     t.db.$client.prepare("UPDATE readings_1m SET first_ts = NULL, min_run_state = NULL, max_run_state = NULL, min_starts = NULL, max_starts = NULL WHERE bucket_ts = ?").run(T + 420 * S);
     store.insert([reading(1, T + 450 * S, { runState: 3, starts: 7 })]);
     expect(rollup(t, "readings_1m", 1, T + 420 * S)).toMatchObject({ n: 2, first_ts: null, min_run_state: null, max_run_state: null, min_starts: null, max_starts: null });
+  });
+
+  it("waits for another process's write to finish instead of failing on a stale snapshot", async () => {
+    const store = createReadingStore(t.db);
+    store.insert([r1]);
+    // Another writer (a thread with its own connection, as the web app or the backfill would be) holds the write lock
+    // for 300 ms and then commits a change.
+    const worker = new Worker(
+      `const { parentPort, workerData } = require("node:worker_threads");
+       const db = new (require("better-sqlite3"))(workerData);
+       db.exec("BEGIN IMMEDIATE; INSERT INTO settings (key, value, updated_at) VALUES ('other-writer', '1', 0)");
+       parentPort.postMessage("locked");
+       Atomics.wait(new Int32Array(new SharedArrayBuffer(4)), 0, 0, 300);
+       db.exec("COMMIT");
+       db.close();`,
+      { eval: true, workerData: t.file },
+    );
+    await new Promise((resolve) => worker.once("message", resolve));
+    // Without a raw row to write first, the store reads before it writes: a deferred transaction would see the other
+    // commit land under it and fail with SQLITE_BUSY_SNAPSHOT; an immediate one waits for the lock (busy timeout).
+    expect(store.insert([r2], { keepRaw: false })).toEqual({ inserted: 1, duplicates: 0 });
+    await new Promise((resolve) => worker.once("exit", resolve));
+    expect(count(t.db, "SELECT count(*) AS n FROM settings WHERE key = 'other-writer'")).toBe(1);
+    expect(rollup(t, "readings_1m", 1, T).n).toBe(2);
   });
 
   it("folds readings into the rollups without keeping raw rows, and recognises a replay of them", () => {
