@@ -73,9 +73,18 @@ function prepared<P extends unknown[], R>(db: Db, sql: string, setup: (s: Statem
 
 /** Time of the oldest raw reading in [from, to), or null when there is none (pruned, or no data). */
 export function firstRawTs(db: Db, compressorId: number, from: number, to: number): number | null {
+  return rawAggregate(db, "min(ts)", compressorId, from, to);
+}
+
+/** Readings stored in [from, to). */
+export function rawCount(db: Db, compressorId: number, from: number, to: number): number {
+  return rawAggregate(db, "count(*)", compressorId, from, to) ?? 0;
+}
+
+function rawAggregate(db: Db, aggregate: string, compressorId: number, from: number, to: number): number | null {
   const s = prepared<[{ id: number; from: number; to: number }], number | null>(
     db,
-    "SELECT min(ts) FROM readings WHERE compressor_id = $id AND ts >= $from AND ts < $to",
+    `SELECT ${aggregate} FROM readings WHERE compressor_id = $id AND ts >= $from AND ts < $to`,
     (x) => x.pluck(),
   );
   return s.get({ id: compressorId, from, to }) ?? null;
@@ -102,15 +111,20 @@ export function rawReader(db: Db, compressorId: number, stages: number, signals:
   };
 }
 
-/** Up to `limit` 1-minute rollup buckets whose start lies in [from, to), in time order. */
-export function readRollupChunk(db: Db, compressorId: number, from: number, to: number, limit: number): RollupRow[] {
-  const s = prepared<[Range], RollupRow>(
+/** Up to `limit` 1-minute buckets whose start lies in [from, to), in time order, as arrays of the selected columns. */
+function readMinuteBuckets<R>(db: Db, select: string, compressorId: number, from: number, to: number, limit: number): R[] {
+  const s = prepared<[Range], R>(
     db,
-    `SELECT ${ROLLUP_SELECT} FROM readings_1m
+    `SELECT ${select} FROM readings_1m
      WHERE compressor_id = $id AND bucket_ts >= $from AND bucket_ts < $to ORDER BY bucket_ts LIMIT $limit`,
     (x) => x.raw(true),
   );
   return s.all({ id: compressorId, from, to, limit });
+}
+
+/** Up to `limit` 1-minute rollup buckets whose start lies in [from, to), in time order. */
+export function readRollupChunk(db: Db, compressorId: number, from: number, to: number, limit: number): RollupRow[] {
+  return readMinuteBuckets<RollupRow>(db, ROLLUP_SELECT, compressorId, from, to, limit);
 }
 
 /**
@@ -142,16 +156,6 @@ export function blockReader(db: Db, compressorId: number, stages: number, signal
   return (from, to) => stmt.get({ id: compressorId, from, to })!;
 }
 
-/** Readings stored in [from, to). */
-export function rawCount(db: Db, compressorId: number, from: number, to: number): number {
-  const s = prepared<[{ id: number; from: number; to: number }], number>(
-    db,
-    "SELECT count(*) FROM readings WHERE compressor_id = $id AND ts >= $from AND ts < $to",
-    (x) => x.pluck(),
-  );
-  return s.get({ id: compressorId, from, to }) ?? 0;
-}
-
 /**
  * Column order of a minute summary row: bucket start, readings, first and last reading's time, run-state and starts
  * ranges, then min, max, n of each signal in ROLLUP_SIGNALS order from M.signals on.
@@ -173,13 +177,7 @@ const MINUTE_SELECT = [
 
 /** Up to `limit` 1-minute buckets starting in [from, to), as minute summary rows, in time order. */
 export function readMinuteChunk(db: Db, compressorId: number, from: number, to: number, limit: number): MinuteRow[] {
-  const s = prepared<[Range], MinuteRow>(
-    db,
-    `SELECT ${MINUTE_SELECT} FROM readings_1m
-     WHERE compressor_id = $id AND bucket_ts >= $from AND bucket_ts < $to ORDER BY bucket_ts LIMIT $limit`,
-    (x) => x.raw(true),
-  );
-  return s.all({ id: compressorId, from, to, limit });
+  return readMinuteBuckets<MinuteRow>(db, MINUTE_SELECT, compressorId, from, to, limit);
 }
 
 const signalIndex = new Map<string, number>(ROLLUP_SIGNALS.map(([k], i) => [k, i]));
