@@ -1,4 +1,6 @@
 import type { Db } from "@/db/client";
+import { findSession } from "@/db/sessions";
+import { findUserById } from "@/db/users";
 import type { LiveTokenClaims } from "@/lib/live-token";
 
 /**
@@ -7,11 +9,12 @@ import type { LiveTokenClaims } from "@/lib/live-token";
  */
 export function liveAccessCheck(db: Db): (claims: LiveTokenClaims) => boolean {
   const linkRevoked = db.$client.prepare("SELECT revoked_at IS NOT NULL FROM display_links WHERE id = ?").pluck();
-  const userDisabled = db.$client.prepare("SELECT disabled FROM users WHERE id = ?").pluck();
-  const sessionOpen = db.$client.prepare("SELECT revoked_at IS NULL FROM user_sessions WHERE id = ? AND user_id = ?").pluck();
   return (c) => {
     if (c.displayLinkId != null) return linkRevoked.get(c.displayLinkId) === 0;
-    if (c.userId == null || userDisabled.get(c.userId) !== 0) return false;
-    return c.sessionId === null || sessionOpen.get(c.sessionId, c.userId) === 1;
+    const user = c.userId == null ? null : findUserById(db, c.userId);
+    if (!user || user.disabled) return false;
+    if (c.sessionId === null) return true;
+    const session = findSession(db, c.sessionId);
+    return session !== null && session.userId === user.id && session.revokedAt == null;
   };
 }
