@@ -2,7 +2,7 @@ import type { Db } from "@/db/client";
 import { databasePath } from "@/db/client";
 import { ingestPassword } from "@/lib/broker/ingest-credential";
 import { defaultAllowedOrigins } from "./live-hub";
-import type { IngesterOptions } from "./ingester";
+import { ingestDefaults, type IngesterOptions } from "./ingester";
 
 type Env = Record<string, string | undefined>;
 
@@ -25,10 +25,10 @@ export function ingesterOptionsFromEnv(db: Db, env: Env = process.env): Ingester
       maxFutureMs: num(env, "INGEST_MAX_FUTURE_S", 300) * 1000,
       maxAgeMs: num(env, "INGEST_MAX_AGE_S", 7 * 86_400, 1) * 1000,
     },
-    flushMs: num(env, "INGEST_FLUSH_MS", 100, 1),
-    batchRows: num(env, "INGEST_BATCH_ROWS", 10_000, 1),
-    // The embedded broker caps nothing; a standard broker's default (Mosquitto: 20) unless told otherwise.
-    brokerInflightCap: env.MQTT_MAX_INFLIGHT === "none" ? null : num(env, "MQTT_MAX_INFLIGHT", 20, 1),
+    flushMs: num(env, "INGEST_FLUSH_MS", ingestDefaults.flushMs, 1),
+    batchRows: num(env, "INGEST_BATCH_ROWS", ingestDefaults.batchRows, 1),
+    // "none" for the embedded broker, which caps nothing; otherwise a standard broker's default unless told.
+    brokerInflightCap: env.MQTT_MAX_INFLIGHT === "none" ? null : num(env, "MQTT_MAX_INFLIGHT", ingestDefaults.brokerInflightCap, 1),
     commsTimeoutMs: num(env, "COMMS_TIMEOUT_S", 60, 1) * 1000,
     retentionMs: num(env, "RETENTION_DAYS", 30, 1) * 86_400_000,
     live:

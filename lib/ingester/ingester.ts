@@ -107,6 +107,9 @@ export type Ingester = {
 type PendingAck = { messageId: number; generation: number };
 type SendPacket = (packet: { cmd: string; messageId?: number }, cb?: (err?: Error) => void, ...rest: unknown[]) => void;
 
+/** Defaults of the batching options; the environment overrides them in config.ts. */
+export const ingestDefaults = { flushMs: 100, batchRows: 10_000, brokerInflightCap: 20 } as const;
+
 const IDLE_FLUSH_MS = 2;
 const MAX_PENDING_ROWS = 200_000;
 
@@ -114,14 +117,14 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const { db } = opts;
   const log = opts.log ?? ((m: string) => console.log(`[ingester] ${m}`));
   const limits = opts.timeLimits ?? DEFAULT_TIME_LIMITS;
-  const flushMs = opts.flushMs ?? 100;
-  const batchRows = opts.batchRows ?? 10_000;
+  const flushMs = opts.flushMs ?? ingestDefaults.flushMs;
+  const batchRows = opts.batchRows ?? ingestDefaults.batchRows;
   const commsTimeoutMs = opts.commsTimeoutMs ?? 60_000;
   const retentionMs = opts.retentionMs ?? 30 * 86_400_000;
   const pruneEveryMs = opts.pruneEveryMs ?? 60_000;
   const ackAfterCommit = opts.ackAfterCommit ?? true;
   const protocolVersion = opts.protocolVersion ?? 4;
-  const inflightCap = opts.brokerInflightCap === undefined ? 20 : opts.brokerInflightCap;
+  const inflightCap = opts.brokerInflightCap === undefined ? ingestDefaults.brokerInflightCap : opts.brokerInflightCap;
   const idleFlushAcks = inflightCap === null ? Number.POSITIVE_INFINITY : Math.max(1, inflightCap - 4);
   const startedAt = Date.now();
 
