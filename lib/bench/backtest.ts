@@ -14,6 +14,7 @@ import { createReadingStore } from "@/db/readings";
 import { backtestWindow } from "@/lib/backtest/run";
 import { alarmSignals, type Limit } from "@/shared/alarm-rules";
 import { runStateCode, type ReadingInput } from "@/shared/telemetry";
+import seedrandom from "seedrandom";
 
 const { values: flags } = parseArgs({
   options: {
@@ -44,17 +45,6 @@ const OLD: Limit[] = [
 ];
 const NEW: Limit[] = OLD.map((l) => (l.signal === "finalStageC" && l.priority === "warning" ? { ...l, value: 150 } : l));
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 function seedDb(db: Db, from: number, n: number): number {
   const s = db.$client;
   s.prepare("INSERT INTO sites (name, code, time_zone, created_at) VALUES ('Bench site', 'bench', 'UTC', ?)").run(from);
@@ -69,7 +59,7 @@ function seedDb(db: Db, from: number, n: number): number {
   );
   // Written as the ingester writes them: raw rows with their 1-minute and 1-hour rollups.
   const store = createReadingStore(db);
-  const rnd = mulberry32(42);
+  const rnd = seedrandom.alea("42");
   // A bank-charging duty cycle: runs ~25 min, stands ~35 min; a hot spell each afternoon, an oil dip now and then.
   let running = false;
   let phaseLeft = 0;

@@ -12,6 +12,7 @@ import { createAlarmEngine } from "@/lib/alarms/engine";
 import { evaluateSample, finalStageTemperature, initialEvaluatorState, type AlarmSample, type EvaluatorState } from "@/shared/alarm-eval";
 import { defaultAlarmSettings, type Limit } from "@/shared/alarm-rules";
 import { runStateCode, type ReadingInput } from "@/shared/telemetry";
+import seedrandom from "seedrandom";
 
 const { values: flags } = parseArgs({
   options: {
@@ -39,17 +40,6 @@ const LIMITS: Limit[] = [
   { signal: "intakeC", direction: "high", priority: "warning", value: 40, deadband: 2, onDelayS: 120, offDelayS: 60 },
   { signal: "intakeC", direction: "low", priority: "advisory", value: 2, deadband: 1, onDelayS: 600, offDelayS: 300 },
 ];
-
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function seed(db: Db, n: number, now: number): number[] {
   const s = db.$client;
@@ -80,7 +70,7 @@ type Sim = { id: number; runState: number; final: number; oil: number; delivery:
 
 /** Readings of a normally running fleet with a few excursions (hot stage, low oil, stops), 1 s apart per compressor. */
 function makeGenerator(ids: number[], t0: number) {
-  const rnd = mulberry32(42);
+  const rnd = seedrandom.alea("42");
   const sims: Sim[] = ids.map((id) => ({ id, runState: runStateCode.running, final: 140, oil: 3.5, delivery: 290, hotUntil: 0, oilLowUntil: 0, stopUntil: 0, starts: 10 }));
   let tick = 0;
   let seq = 0;

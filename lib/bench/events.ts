@@ -16,18 +16,12 @@ import {
 import { runMigrations } from "@/db/migrate";
 import { signalInfo, type AlarmSignal, type Priority } from "@/shared/alarm-rules";
 import { tripCodes } from "@/shared/trip-codes";
+import seedrandom from "seedrandom";
 
-// ---------- a small deterministic random source (mulberry32) ----------
+// ---------- a deterministic random source ----------
 
 function rng(seed: number) {
-  let a = seed >>> 0;
-  const next = () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
+  const next = seedrandom.alea(String(seed));
   return {
     next,
     int: (lo: number, hi: number) => lo + Math.floor(next() * (hi - lo + 1)),
