@@ -57,12 +57,22 @@ export function defaultAllowedOrigins(env: Record<string, string | undefined> = 
     .map((s) => s.trim())
     .filter(Boolean);
   if (explicit?.length) return explicit;
+  let url: URL;
   try {
-    return [new URL(env.NEXTAUTH_URL ?? "http://localhost:3000").origin];
+    url = new URL(env.NEXTAUTH_URL ?? "http://localhost:3000");
   } catch {
-    return ["http://localhost:3000"];
+    url = new URL("http://localhost:3000");
   }
+  // A page opened at 127.0.0.1 or [::1] is the same loopback server as one opened at localhost.
+  if (!LOOPBACK_HOSTS.includes(url.hostname)) return [url.origin];
+  return LOOPBACK_HOSTS.map((host) => {
+    const u = new URL(url.origin);
+    u.hostname = host;
+    return u.origin;
+  });
 }
+
+const LOOPBACK_HOSTS = ["localhost", "127.0.0.1", "[::1]"];
 
 function refuse(socket: net.Socket, status: number, text: string): void {
   socket.end(`HTTP/1.1 ${status} ${text}\r\nConnection: close\r\nContent-Type: text/plain\r\nContent-Length: ${text.length}\r\n\r\n${text}`);
