@@ -1,6 +1,7 @@
 import { parseArgs } from "node:util";
 import { openDatabase } from "../db/client";
 import { backfill } from "./backfill";
+import { backfillProgress } from "./backfill-progress";
 import { defaultDevicesPath, defaultStatePath, readDevicesFile } from "./devices";
 import { faultKinds, parseFaultSpec } from "./model/faults";
 import { FleetPublisher } from "./publisher";
@@ -108,6 +109,7 @@ if (flags.backfill !== undefined) {
       faults,
       now,
       progress: process.stderr.isTTY === true,
+      onProgress: backfillProgress(db, log, { lines: process.stderr.isTTY !== true }),
       log,
     });
     let rows = 0;
