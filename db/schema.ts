@@ -314,6 +314,10 @@ export const displayLinks = sqliteTable("display_links", {
   createdAt: integer("created_at").notNull(),
   revokedAt: integer("revoked_at"),
   lastUsedAt: integer("last_used_at"),
+  /** How the wall screen shows: its theme and units, set per link (a control room far from the office's habits). */
+  theme: text("theme", { enum: ["light", "dark"] }).notNull().default("dark"),
+  pressureUnit: text("pressure_unit", { enum: ["bar", "psi", "MPa"] }).notNull().default("bar"),
+  temperatureUnit: text("temperature_unit", { enum: ["C", "F"] }).notNull().default("C"),
 });
 
 export type DisplayLinkRow = typeof displayLinks.$inferSelect;

@@ -32,7 +32,7 @@ export default async function SignedInLayout({ children }: { children: ReactNode
         </header>
         <HistoryNotice initial={readBackfillStatus(getDb())} />
         <main className="flex-1 px-4 py-4">{children}</main>
-        <SafetyNotice />
+        <SafetyNotice sticky compact />
         <CriticalToast />
       </div>
     </Providers>
