@@ -171,8 +171,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
 
   let hub: LiveHub | null = null;
   if (opts.live) {
-    // Revoked access stops live values at the next ping, not at token expiry.
-    hub = await startLiveHub({ board, directory, stillAllowed: liveAccessCheck(db), ...opts.live, log: (m) => log(m) });
+    // Access is checked when a socket opens and again at every ping (revocation, session limits, site scope).
+    hub = await startLiveHub({ board, directory, access: liveAccessCheck(db), ...opts.live, log: (m) => log(m) });
   }
   const notify = (compressorId: number) => hub?.notify(compressorId);
 
@@ -471,6 +471,9 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       counters["ws.accepted"] = s.live.accepted;
       counters["ws.refusedToken"] = s.live.refusedToken;
       counters["ws.refusedOrigin"] = s.live.refusedOrigin;
+      counters["ws.refusedAccess"] = s.live.refusedAccess;
+      counters["ws.closedRevoked"] = s.live.closedRevoked;
+      counters["ws.rescoped"] = s.live.rescoped;
       counters["ws.droppedSlow"] = s.live.droppedSlow;
       counters["ws.updatesSent"] = s.live.updatesSent;
     }
