@@ -18,6 +18,7 @@ import { liveAccessCheck } from "./live-access";
 import { LiveBoard } from "./live-board";
 import { type LiveHub, startLiveHub } from "./live-hub";
 import { createRateLimitedLog } from "./reject-log";
+import { createSequenceGuard, type Neighbours } from "./sequence";
 
 export type IngesterOptions = {
   db: Db;
@@ -87,6 +88,10 @@ export type IngesterStats = {
   slowestFlushMs: number;
   pendingRows: number;
   pruned: number;
+  /** Readings accepted as the first of a new run after a gateway restart (seq started over). */
+  seqRestarts: number;
+  /** Readings that arrived after a later one and were stored in their place (a reconnecting client may reorder). */
+  lateReadings: number;
   commsLost: number;
   commsRestored: number;
   reconnects: number;
@@ -138,6 +143,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const directory = createDeviceDirectory(db);
   const board = new LiveBoard(listCompressorStates(db));
   const rejectLog = createRateLimitedLog((line) => log(`reject ${line}`));
+  const noticeLog = createRateLimitedLog(log);
   const alarmEngine = opts.alarms === false ? null : createAlarmEngine(db, { log: (m) => log(`alarms: ${m}`) });
   // Readings and the alarm changes they cause commit together, so a restart neither loses nor repeats an alarm.
   const commit = db.$client.transaction(
@@ -163,6 +169,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     lastFlushMs: 0,
     slowestFlushMs: 0,
     pruned: 0,
+    seqRestarts: 0,
+    lateReadings: 0,
     commsLost: 0,
     commsRestored: 0,
     reconnects: 0,
@@ -177,6 +185,21 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const notify = (compressorId: number) => hub?.notify(compressorId);
 
   let pendingRows: ReadingInput[] = [];
+  // Pending rows are not in the table yet, so they are looked at too (off the common path only).
+  const heldAround = (compressorId: number, ts: number): Neighbours => {
+    const n: Neighbours = store.around(compressorId, ts);
+    for (const r of pendingRows) {
+      if (r.compressorId !== compressorId) continue;
+      if (r.ts === ts) n.at = r.seq;
+      else if (r.ts < ts && (!n.before || r.ts > n.before.ts)) n.before = { seq: r.seq, ts: r.ts };
+      else if (r.ts > ts && (!n.after || r.ts < n.after.ts)) n.after = { seq: r.seq, ts: r.ts };
+    }
+    return n;
+  };
+  const sequence = createSequenceGuard(
+    board.rows().flatMap((r) => (r.ts !== null && r.seq !== null ? [[r.compressorId, { seq: r.seq, ts: r.ts }] as const] : [])),
+    heldAround,
+  );
   let pendingEvents: DeviceEventInput[] = [];
   let pendingAcks: PendingAck[] = [];
   let flushTimer: NodeJS.Timeout | null = null;
@@ -265,6 +288,10 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
         rejects.duplicate += res.duplicates;
         rejectLog.note("duplicate", `${res.duplicates} reading(s) already stored`);
       }
+      if (res.conflicts > 0) {
+        rejects.sameTimestamp += res.conflicts;
+        rejectLog.note("sameTimestamp", `${res.conflicts} reading(s) in a millisecond another reading already holds`);
+      }
     } catch (e) {
       st.flushErrors++;
       alarmEngine?.resync();
@@ -320,10 +347,21 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     switch (c.channel) {
       case "telemetry": {
         st.telemetry++;
-        const reading = telemetryToReading(id, c.msg);
-        pendingRows.push(reading);
+        // The device is talking even when the reading breaks the sequence rule.
         commsUp(id, now, "Telemetry resumed");
         board.seen(id, now);
+        const verdict = sequence.check(id, c.msg.seq, c.msg.ts);
+        if (verdict === "restart") {
+          st.seqRestarts++;
+          noticeLog.note("sequence restart", `${c.device.deviceId} started a new run at seq ${c.msg.seq}`);
+        } else if (verdict === "late") {
+          st.lateReadings++;
+        } else if (verdict !== "next") {
+          reject(verdict, `${c.device.deviceId} seq ${c.msg.seq} ts ${c.msg.ts}`, topic);
+          break;
+        }
+        const reading = telemetryToReading(id, c.msg);
+        pendingRows.push(reading);
         if (board.applyReading(reading, now)) notify(id);
         break;
       }
@@ -350,6 +388,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
           commsDown(id, now, c.msg.ts ?? now, packet.retain ? "Device offline (retained status)" : "Device went offline (last will or disconnect)");
         } else if (!packet.retain) {
           // A retained "online" only says the device connected at some point, not that it is reporting now.
+          sequence.reconnected(id);
           commsUp(id, now, "Device connected");
           board.seen(id, now);
           notify(id);
@@ -460,6 +499,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       slowestFlushMs: Math.round(s.slowestFlushMs),
       pendingRows: s.pendingRows,
       pruned: s.pruned,
+      seqRestarts: s.seqRestarts,
+      lateReadings: s.lateReadings,
       commsLost: s.commsLost,
       commsRestored: s.commsRestored,
       reconnects: s.reconnects,
@@ -519,6 +560,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       await checkpointer?.close();
       db.$client.pragma("wal_autocheckpoint = 1000");
       rejectLog.flush();
+      noticeLog.flush();
       writeStatus();
     },
   };
