@@ -44,6 +44,7 @@ const RAW_COLUMNS = [
   "hour_meter_h",
   "starts",
   "trip_code",
+  "implausible",
 ] as const;
 
 /**
@@ -303,6 +304,7 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
           r.hourMeterH,
           r.starts,
           r.tripCode,
+          r.implausible ? JSON.stringify(r.implausible) : null,
         );
         if (res.changes === 0) {
           if (selectSeqAt.get(r.compressorId, r.ts) === r.seq) duplicates++;

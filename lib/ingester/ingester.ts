@@ -18,6 +18,7 @@ import { liveAccessCheck } from "./live-access";
 import { LiveBoard } from "./live-board";
 import { type LiveHub, startLiveHub } from "./live-hub";
 import { createRateLimitedLog } from "./reject-log";
+import { type PressureField, pressureFields, withholdImplausible } from "./plausibility";
 import { createSequenceGuard, type Neighbours } from "./sequence";
 
 export type IngesterOptions = {
@@ -92,6 +93,8 @@ export type IngesterStats = {
   seqRestarts: number;
   /** Readings that arrived after a later one and were stored in their place (a reconnecting client may reorder). */
   lateReadings: number;
+  /** Pressures withheld from stored readings as beyond the model's reach (sensor faults), by field. */
+  sensorFaults: Record<PressureField, number>;
   commsLost: number;
   commsRestored: number;
   reconnects: number;
@@ -157,6 +160,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   );
 
   const rejects = Object.fromEntries(rejectReasons.map((r) => [r, 0])) as Record<RejectReason, number>;
+  const sensorFaults = Object.fromEntries(pressureFields.map((f) => [f, 0])) as Record<PressureField, number>;
   const st = {
     received: 0,
     telemetry: 0,
@@ -361,6 +365,10 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
           break;
         }
         const reading = telemetryToReading(id, c.msg);
+        for (const f of withholdImplausible(reading, c.device.ratedPressureBar)) {
+          sensorFaults[f]++;
+          noticeLog.note(`sensor fault ${c.device.deviceId}`, `${f} ${reading.implausible?.[f]} bar is beyond a ${c.device.ratedPressureBar}-bar model: withheld`);
+        }
         pendingRows.push(reading);
         if (board.applyReading(reading, now)) notify(id);
         break;
@@ -478,6 +486,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     connected,
     ...st,
     rejects: { ...rejects },
+    sensorFaults: { ...sensorFaults },
     pendingRows: pendingRows.length,
     live: hub?.stats() ?? null,
   });
@@ -508,6 +517,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       rssMb: Math.round(process.memoryUsage.rss() / 1048576),
     };
     for (const r of rejectReasons) counters[`reject.${r}`] = s.rejects[r];
+    for (const f of pressureFields) counters[`sensorFault.${f}`] = s.sensorFaults[f];
     if (s.live) {
       counters["ws.accepted"] = s.live.accepted;
       counters["ws.refusedToken"] = s.live.refusedToken;

@@ -161,7 +161,7 @@ describe("rejections (counted per reason; the stream carries on)", () => {
     await send("{ not json");
     await send(JSON.stringify(telemetry({ deliveryBar: "high" as unknown as number })));
     await send(`${JSON.stringify(telemetry({ ts: now - 10_000 })).slice(0, -1)},"oilBar":-1e999}`.replace(/"oilBar":4.5,/, ""));
-    await send(JSON.stringify(telemetry({ deliveryBar: 9_999 })));
+    await send(JSON.stringify(telemetry({ deliveryBar: -9_999 })));
     await send(JSON.stringify(telemetry({ ts: now + 10 * 60_000 })));
     await send(JSON.stringify(telemetry({ ts: now - 8 * 86_400_000 })));
     await send(JSON.stringify(telemetry({ ts: now - 2_000, seq: 77 })));
