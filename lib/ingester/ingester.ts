@@ -189,11 +189,17 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const notify = (compressorId: number) => hub?.notify(compressorId);
 
   let pendingRows: ReadingInput[] = [];
-  // Pending rows are not in the table yet, so they are looked at too (off the common path only).
+  // Pending rows by compressor: not in the table yet, so the sequence rule looks at them too (off the common path).
+  let pendingBy = new Map<number, ReadingInput[]>();
+  const hold = (r: ReadingInput): void => {
+    pendingRows.push(r);
+    const list = pendingBy.get(r.compressorId);
+    if (list) list.push(r);
+    else pendingBy.set(r.compressorId, [r]);
+  };
   const heldAround = (compressorId: number, ts: number): Neighbours => {
     const n: Neighbours = store.around(compressorId, ts);
-    for (const r of pendingRows) {
-      if (r.compressorId !== compressorId) continue;
+    for (const r of pendingBy.get(compressorId) ?? []) {
       if (r.ts === ts) n.at = r.seq;
       else if (r.ts < ts && (!n.before || r.ts > n.before.ts)) n.before = { seq: r.seq, ts: r.ts };
       else if (r.ts > ts && (!n.after || r.ts < n.after.ts)) n.after = { seq: r.seq, ts: r.ts };
@@ -276,6 +282,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     const events = pendingEvents;
     const acks = pendingAcks;
     pendingRows = [];
+    pendingBy = new Map();
     pendingEvents = [];
     pendingAcks = [];
     const states = board.takeDirty();
@@ -301,7 +308,10 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       alarmEngine?.resync();
       log(`commit failed, will retry: ${(e as Error).message}`);
       // Not acknowledged, so the broker still holds them; keep a bounded copy to retry.
-      pendingRows = rows.concat(pendingRows).slice(-MAX_PENDING_ROWS);
+      const held = rows.concat(pendingRows).slice(-MAX_PENDING_ROWS);
+      pendingRows = [];
+      pendingBy = new Map();
+      for (const r of held) hold(r);
       pendingEvents = events.concat(pendingEvents).slice(-10_000);
       pendingAcks = acks.concat(pendingAcks);
       board.markDirty(states.map((x) => x.compressorId));
@@ -369,7 +379,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
           sensorFaults[f]++;
           noticeLog.note(`sensor fault ${c.device.deviceId}`, `${f} ${reading.implausible?.[f]} bar is beyond a ${c.device.ratedPressureBar}-bar model: withheld`);
         }
-        pendingRows.push(reading);
+        hold(reading);
         if (board.applyReading(reading, now)) notify(id);
         break;
       }
