@@ -189,6 +189,8 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
   const pingTimer = setInterval(() => {
     const data = JSON.stringify({ type: "ping", at: Date.now() } satisfies LiveMessage);
     for (const c of conns) {
+      // Closing already (its close handshake still under way): judged and counted once.
+      if (c.ws.readyState !== WebSocket.OPEN) continue;
       if (!c.alive) {
         c.ws.terminate();
         continue;

@@ -4,7 +4,7 @@ import { getCompressorState, getIngesterStatus } from "@/db/telemetry-state";
 import { type BrokerHandle, startBroker } from "@/lib/broker/broker";
 import { type Ingester, startIngester } from "@/lib/ingester/ingester";
 import type { Telemetry } from "@/shared/telemetry";
-import { connectDevice, type FleetDevice, makeTempDb, seedFleet, type TempDb, telemetry, topicOf, waitFor } from "./ingest-fixtures";
+import { connectDevice, type FleetDevice, makeTempDb, seedFleet, sendReadings, type TempDb, waitFor } from "./ingest-fixtures";
 
 const INGEST_PASSWORD = "ingest-password-for-tests-0123456789";
 
@@ -48,10 +48,7 @@ afterAll(async () => {
 async function send(id: string, readings: Partial<Telemetry>[]): Promise<void> {
   const c = await connectDevice(url, dev.get(id)!);
   clients.push(c);
-  const target = ingester.stats().telemetry + readings.length;
-  for (const r of readings) await c.publishAsync(topicOf(dev.get(id)!), JSON.stringify(telemetry(r)), { qos: 1 });
-  await waitFor(() => ingester.stats().telemetry >= target, 3_000, "readings handled");
-  ingester.flush();
+  await sendReadings(ingester, c, dev.get(id)!, readings);
 }
 
 type Row = { seq: number; delivery_bar: number | null; stage3_bar: number | null; stage1_c: number | null; implausible: string | null };

@@ -3,7 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type BrokerHandle, startBroker } from "@/lib/broker/broker";
 import { type Ingester, startIngester } from "@/lib/ingester/ingester";
 import type { Telemetry } from "@/shared/telemetry";
-import { connectDevice, type FleetDevice, makeTempDb, seedFleet, type TempDb, telemetry, topicOf, waitFor } from "./ingest-fixtures";
+import { connectDevice, type FleetDevice, makeTempDb, seedFleet, sendReadings, type TempDb, topicOf, waitFor } from "./ingest-fixtures";
 
 const INGEST_PASSWORD = "ingest-password-for-tests-0123456789";
 
@@ -44,13 +44,7 @@ async function device(id: string): Promise<MqttClient> {
   return c;
 }
 
-/** Publishes readings in order at QoS 1 and waits until the ingester has judged each and committed what it kept. */
-async function send(c: MqttClient, id: string, readings: Partial<Telemetry>[]): Promise<void> {
-  const target = ingester.stats().telemetry + readings.length;
-  for (const r of readings) await c.publishAsync(topicOf(dev.get(id)!), JSON.stringify(telemetry(r)), { qos: 1 });
-  await waitFor(() => ingester.stats().telemetry >= target, 3_000, "readings handled");
-  ingester.flush();
-}
+const send = (c: MqttClient, id: string, readings: Partial<Telemetry>[]) => sendReadings(ingester, c, dev.get(id)!, readings);
 
 const stored = (id: string) =>
   t.db.$client
