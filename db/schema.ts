@@ -116,6 +116,13 @@ export const readings = sqliteTable(
     hourMeterH: real("hour_meter_h"),
     starts: integer("starts"),
     tripCode: integer("trip_code"),
+    // ---- Plausibility per model (sensor faults) ----
+    /**
+     * Pressures the reading reported beyond what its model can reach (bar, by field name, e.g. {"deliveryBar": 675}):
+     * a sensor fault. Those columns hold null, so trends, rollups and alarms never take them as pressures.
+     */
+    implausible: text("implausible", { mode: "json" }).$type<Record<string, number>>(),
+    // ---- end plausibility ----
   },
   (t) => [primaryKey({ columns: [t.compressorId, t.ts] })],
 );
