@@ -1,6 +1,5 @@
 import type { EventEmitter } from "node:events";
 import net from "node:net";
-import path from "node:path";
 import { Aedes, type Client } from "aedes";
 import type { Db } from "@/db/client";
 import { writeServiceStatus } from "@/db/telemetry-state";
@@ -9,7 +8,7 @@ import { createAuditLimiter } from "./audit-limiter";
 import { createCredentialChecker, type DeviceIdentity, type Identity } from "./credentials";
 import { type GuardLimits, guardSocket, type PacketGuard } from "./packet-guard";
 import { FastMemoryPersistence } from "./persistence";
-import { openQueueFile } from "./queue-file";
+import { openQueueFile, queueFilePath } from "./queue-file";
 import { INGEST_CLIENT_ID, INGEST_TOPIC, ingestPassword as defaultIngestPassword, RESERVED_CLIENT_ID_PREFIX } from "./ingest-credential";
 
 /** The broker refuses (acknowledges and drops) larger payloads; the ingester applies the tighter contract limit. */
@@ -129,7 +128,7 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
   // Publishes refused but acknowledged: aedes sends the PUBACK, then asks publish() to route them, which skips them.
   const dropped = new WeakSet<object>();
   const strikes = new WeakMap<Client, { since: number; n: number }>();
-  const queueFile = openQueueFile(opts.queueFile ?? path.join(path.dirname(db.$client.name), "broker-queue.db"), log);
+  const queueFile = openQueueFile(opts.queueFile ?? queueFilePath(db.$client.name), log);
 
   const persistence = new FastMemoryPersistence({
     queueFile,

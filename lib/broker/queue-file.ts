@@ -1,11 +1,17 @@
 import fs from "node:fs";
 import path from "node:path";
 import Database from "better-sqlite3";
+import { databasePath } from "@/db/client";
 
 // The broker's outgoing queues on disk, in their own SQLite file (not the app database: no lock shared with the
 // ingester's commits). Writes are gathered and committed once per event-loop turn, so a message the ingester
 // acknowledges before the commit never touches the disk, and a restart of the broker loses at most one turn's
 // messages if the process is killed outright (none on a planned stop, which flushes).
+
+/** The embedded broker's queue file, beside the database. */
+export function queueFilePath(dbFile = databasePath()): string {
+  return path.join(path.dirname(dbFile), "broker-queue.db");
+}
 
 export type QueuedPacket = { topic: string; payload: Buffer; qos: number; retain: boolean };
 export type QueueRow = QueuedPacket & { clientId: string; seq: number };
