@@ -3,7 +3,7 @@ import net from "node:net";
 import mqttPacket from "mqtt-packet";
 import type { MqttClient } from "mqtt";
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
-import { getBrokerStatus } from "@/db/telemetry-state";
+import { getBrokerStatus, getIngesterStatus } from "@/db/telemetry-state";
 import { type BrokerHandle, type BrokerOptions, startBroker } from "@/lib/broker/broker";
 import { type Ingester, startIngester } from "@/lib/ingester/ingester";
 import { refusalsFrom } from "@/lib/health";
@@ -239,17 +239,25 @@ describe("socket limits before parsing", () => {
     expect(b.stats().refused.connect_timeout).toBe(1);
   });
 
-  it("counts refusals by reason in the broker's status, since its start", async () => {
+  it("reports broker refusals and ingester rejections by reason side by side, each since its process started", async () => {
     const b = await broker({ statusIntervalMs: 50 });
+    const t0 = Date.now();
+    const ing = await startIngester({ db: t.db, mqttUrl: `mqtt://127.0.0.1:${port}`, password: INGEST_PASSWORD, flushMs: 30, live: null, statusIntervalMs: 50, log: () => {} });
+    cleanups.push(() => ing.close());
     const wrong = mqttPacket.generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clientId: "hp-1", username: "hp-1", password: Buffer.from("nope"), clean: true, keepalive: 30 });
     const s = net.connect(port, "127.0.0.1", () => s.write(wrong));
     cleanups.push(() => void s.destroy());
     await waitFor(() => b.stats().refused.auth_failed === 1, 5_000, "auth refusal");
     await flood(announce(3, 1_000_000));
-    await waitFor(() => getBrokerStatus(t.db)?.counters["refused.not_connect_first"] === 1, 5_000, "status row");
-    const r = refusalsFrom(getBrokerStatus(t.db), null);
+    const c = await device(fleet[0]!);
+    await c.publishAsync(topicOf(fleet[0]!), "not json", { qos: 1 });
+    await waitFor(() => getBrokerStatus(t.db)?.counters["refused.not_connect_first"] === 1, 5_000, "broker status row");
+    await waitFor(() => (getIngesterStatus(t.db)?.counters["reject.badJson"] ?? 0) >= 1, 5_000, "ingester status row");
+    const r = refusalsFrom(getBrokerStatus(t.db), getIngesterStatus(t.db));
     expect(r.broker.byReason).toMatchObject({ auth_failed: 1, not_connect_first: 1 });
     expect(r.broker.since).toBe(b.stats().startedAt);
-    expect(r.ingester).toEqual({ since: null, byReason: {} });
+    expect(r.ingester.byReason.badJson).toBe(1);
+    expect(r.ingester.since).toBeGreaterThanOrEqual(t0);
+    expect(r.ingester.since).toBeLessThanOrEqual(Date.now());
   });
 });
