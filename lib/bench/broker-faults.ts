@@ -1,6 +1,6 @@
 // Broker fault figures: readings lost when the broker restarts while the ingester is away, valid readings stored
 // after one refused ("poison") publish, and the broker's memory while unauthenticated clients send 100 MB packets.
-// Run: npm run bench:broker   (READINGS=100000 AWAY_S=8 SENDERS=10)
+// Run: npm run bench:broker   (READINGS=100000 AWAY_S=8 SENDERS=10; AWAY_S is the least time the ingester is away)
 import { fork } from "node:child_process";
 import fs from "node:fs";
 import net from "node:net";
@@ -78,37 +78,45 @@ async function restartWhileAway(total: number, awayS: number) {
   const perDevice = Math.ceil(total / clients.length);
   const base = Date.now() - 86_400_000;
   const sent = { n: 0 };
-  // Spread over about twice the time the ingester is away, so some go before, during and after.
-  const perTick = Math.max(1, Math.ceil(perDevice / (awayS * 2 * 10)));
-  const publishing = Promise.all(
-    clients.map(async (c, k) => {
-      for (let i = 0; i < perDevice; i += perTick) {
-        const batch = [];
-        for (let j = i; j < Math.min(perDevice, i + perTick); j++) {
-          batch.push(c.publishAsync(topicFor("bench", t.devices[k]!.deviceId, "telemetry"), reading(j, base + j * 100), { qos: 1 }));
-          sent.n++;
+  let next = 0;
+  // Each device publishes readings [next, upTo) with up to 100 unacknowledged, as fast as the broker takes them.
+  const publishUpTo = (upTo: number) => {
+    const from = next;
+    next = Math.min(perDevice, upTo);
+    return Promise.all(
+      clients.map(async (c, k) => {
+        for (let i = from; i < next; i += 100) {
+          const batch = [];
+          for (let j = i; j < Math.min(next, i + 100); j++) {
+            batch.push(c.publishAsync(topicFor("bench", t.devices[k]!.deviceId, "telemetry"), reading(j, base + j * 100), { qos: 1 }));
+            sent.n++;
+          }
+          await Promise.all(batch);
         }
-        await Promise.all([...batch, sleep(100)]);
-      }
-    }),
-  );
-  await sleep(1_000);
+      }),
+    );
+  };
+  // 10 % with the ingester there, 60 % while it is away before the broker restarts, 20 % after, 10 % once it is back.
+  await publishUpTo(perDevice * 0.1);
   await ingester.close();
   const awayAt = Date.now();
-  await sleep((awayS * 1000) / 2);
+  await publishUpTo(perDevice * 0.7);
   const queuedBefore = broker.stats().ingestQueue;
   await broker.close();
   broker = await startBroker(brokerOpts);
   const queuedAfter = broker.stats().ingestQueue;
+  await publishUpTo(perDevice * 0.9);
   await sleep(Math.max(0, awayAt + awayS * 1000 - Date.now()));
+  const awaySeconds = +((Date.now() - awayAt) / 1000).toFixed(1);
   ingester = await startIngester(ingesterOpts);
-  await publishing;
+  await publishUpTo(perDevice);
   const stored = () => (t.db.$client.prepare("SELECT count(*) AS n FROM readings").get() as { n: number }).n;
   await until(() => stored() >= sent.n, 60_000);
   const result = {
     sent: sent.n,
     stored: stored(),
     lost: sent.n - stored(),
+    ingesterAwaySeconds: awaySeconds,
     queuedAtRestart: queuedBefore,
     reloadedAfterRestart: queuedAfter,
     ingesterRejects: Object.fromEntries(Object.entries(ingester.stats().rejects).filter(([, n]) => n > 0)),
