@@ -3,7 +3,6 @@
 // Run: npm run bench:broker   (READINGS=100000 AWAY_S=8 SENDERS=10; AWAY_S is the least time the ingester is away)
 import { fork } from "node:child_process";
 import fs from "node:fs";
-import net from "node:net";
 import os from "node:os";
 import path from "node:path";
 import { fileURLToPath } from "node:url";
@@ -15,6 +14,7 @@ import { runMigrations } from "@/db/migrate";
 import { type BrokerHandle, startBroker } from "@/lib/broker/broker";
 import { startIngester } from "@/lib/ingester/ingester";
 import { topicFor } from "@/shared/telemetry";
+import { fixedHeader, flood } from "./mqtt-flood";
 
 const SELF = fileURLToPath(import.meta.url);
 const INGEST_PASSWORD = "bench-ingest-password-0123456789";
@@ -171,27 +171,6 @@ async function brokerChild() {
   process.send?.({ ready: true });
 }
 
-function sender(port: number, head: Buffer, bytes: number): Promise<number> {
-  return new Promise((resolve) => {
-    const s = net.connect(port, "127.0.0.1");
-    const chunk = Buffer.alloc(MB, 0x41);
-    let sent = 0;
-    s.on("error", () => {});
-    s.on("close", () => resolve(sent));
-    s.once("connect", () => {
-      s.write(head);
-      const pump = () => {
-        while (!s.destroyed && sent < bytes) {
-          sent += chunk.length;
-          if (!s.write(chunk)) return void s.once("drain", pump);
-        }
-        if (sent >= bytes) s.end();
-      };
-      pump();
-    });
-  });
-}
-
 async function memory(senders: number) {
   const t = tempDb(1);
   t.db.$client.close();
@@ -213,24 +192,13 @@ async function memory(senders: number) {
   // 100 MB announced by a PUBLISH header with no CONNECT, by a CONNECT header, or by a PUBLISH right behind a CONNECT
   // with a wrong password (sent before the broker has answered it).
   const length = 100 * 1000 * 1000;
-  const head = (type: number) => {
-    const bytes = [type << 4];
-    let n = length;
-    do {
-      let b = n % 128;
-      n = Math.floor(n / 128);
-      if (n > 0) b |= 0x80;
-      bytes.push(b);
-    } while (n > 0);
-    return Buffer.from(bytes);
-  };
   const t0 = Date.now();
   const badConnect = mqttPacket.generate({
     cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clientId: "bench-0", username: "bench-0", password: Buffer.from("wrong"),
     clean: true, keepalive: 30,
   });
-  const heads = [head(3), head(1), Buffer.concat([badConnect, head(3)])];
-  const sentBytes = await Promise.all(Array.from({ length: senders }, (_, i) => sender(port, heads[i % 3]!, length)));
+  const heads = [fixedHeader(3, length), fixedHeader(1, length), Buffer.concat([badConnect, fixedHeader(3, length)])];
+  const sentBytes = await Promise.all(Array.from({ length: senders }, (_, i) => flood(port, heads[i % 3]!, length, MB).done));
   const ms = Date.now() - t0;
   await sleep(200);
   const after = await ask("stats");

@@ -6,6 +6,7 @@ import { afterEach, beforeEach, describe, expect, it } from "vitest";
 import { getBrokerStatus, getIngesterStatus } from "@/db/telemetry-state";
 import { type BrokerHandle, type BrokerOptions, startBroker } from "@/lib/broker/broker";
 import { type Ingester, startIngester } from "@/lib/ingester/ingester";
+import { fixedHeader, flood } from "@/lib/bench/mqtt-flood";
 import { refusalsFrom } from "@/lib/health";
 import {
   connectDevice,
@@ -175,45 +176,18 @@ describe("a refused publish is acknowledged and dropped; the device stays connec
 });
 
 describe("socket limits before parsing", () => {
-  /** Sends `head`, then keeps writing 64 KiB chunks; resolves with the bytes written when the broker closes it. */
-  function flood(head: Buffer, totalBytes = 20_000_000): Promise<number> {
-    return new Promise((resolve) => {
-      const s = net.connect(port, "127.0.0.1");
-      let sent = 0;
-      const chunk = Buffer.alloc(64 * 1024, 0x41);
-      s.on("error", () => {});
-      s.on("close", () => resolve(sent));
-      s.once("connect", () => {
-        s.write(head);
-        const pump = () => {
-          while (!s.destroyed && sent < totalBytes) {
-            sent += chunk.length;
-            if (!s.write(chunk)) return void s.once("drain", pump);
-          }
-          if (sent >= totalBytes) s.end();
-        };
-        pump();
-      });
-      cleanups.push(() => void s.destroy());
-    });
-  }
-  const announce = (type: number, length: number) => {
-    const len: number[] = [];
-    do {
-      let b = length % 128;
-      length = Math.floor(length / 128);
-      if (length > 0) b |= 0x80;
-      len.push(b);
-    } while (length > 0);
-    return Buffer.from([type << 4, ...len]);
+  const flooded = (head: Buffer, bytes = 20_000_000) => {
+    const f = flood(port, head, bytes);
+    cleanups.push(() => void f.socket.destroy());
+    return f.done;
   };
 
   it.each([
-    ["a packet before CONNECT", announce(3, 100_000_000), "not_connect_first"],
-    ["a 100 MB CONNECT", announce(1, 100_000_000), "connect_too_large"],
+    ["a packet before CONNECT", fixedHeader(3, 100_000_000), "not_connect_first"],
+    ["a 100 MB CONNECT", fixedHeader(1, 100_000_000), "connect_too_large"],
   ])("drops a client that sends %s at once, unbuffered", async (_l, head, reason) => {
     const b = await broker();
-    const sent = await flood(head);
+    const sent = await flooded(head);
     // Closed long before the 20 MB were through, and well inside the 10 s CONNECT timeout.
     expect(sent).toBeLessThan(20_000_000);
     expect(b.stats().refused[reason]).toBe(1);
@@ -248,7 +222,7 @@ describe("socket limits before parsing", () => {
     const s = net.connect(port, "127.0.0.1", () => s.write(wrong));
     cleanups.push(() => void s.destroy());
     await waitFor(() => b.stats().refused.auth_failed === 1, 5_000, "auth refusal");
-    await flood(announce(3, 1_000_000));
+    await flooded(fixedHeader(3, 1_000_000));
     const c = await device(fleet[0]!);
     await c.publishAsync(topicOf(fleet[0]!), "not json", { qos: 1 });
     await waitFor(() => getBrokerStatus(t.db)?.counters["refused.not_connect_first"] === 1, 5_000, "broker status row");
