@@ -291,6 +291,8 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
   aedes.on("connectionError", (_client, err) => {
     c.clientErrors++;
     if (/connect did not arrive/.test(err.message)) refuse("connect_timeout");
+    else if (/unacceptable protocol version/.test(err.message)) refuse("protocol_version");
+    else if (!/ECONNRESET|EPIPE|connection closed/i.test(err.message)) refuse("malformed_packet");
   });
   (aedes as EventEmitter).on("error", (err: Error) => log(`error: ${err.message}`));
 

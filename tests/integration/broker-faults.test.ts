@@ -18,8 +18,11 @@ import {
   type TempDb,
   telemetry,
   topicOf,
+  tryConnect,
   waitFor,
 } from "./ingest-fixtures";
+
+const credentialsOf = (d: FleetDevice) => ({ clientId: d.deviceId, username: d.deviceId, password: d.secret ?? "" });
 
 const INGEST_PASSWORD = "ingest-password-for-tests-0123456789";
 
@@ -201,6 +204,16 @@ describe("socket limits before parsing", () => {
     c.publish(topicOf(fleet[0]!), Buffer.alloc(300_000, 0x20), { qos: 1 });
     await closed;
     expect(b.stats().refused.packet_too_large).toBe(1);
+  });
+
+  it("counts an MQTT 5 client (refused: the embedded broker speaks 3.1.1) and a malformed CONNECT", async () => {
+    const b = await broker();
+    const r = await tryConnect(`mqtt://127.0.0.1:${port}`, { ...credentialsOf(fleet[0]!), protocolVersion: 5 });
+    expect(r.code).not.toBeNull();
+    await waitFor(() => b.stats().refused.protocol_version === 1, 2_000, "protocol refusal");
+    // A CONNECT whose protocol name is not MQTT (mqtt-packet refuses it while parsing).
+    await flooded(Buffer.from([0x10, 0x06, 0x00, 0x04, 0x58, 0x58, 0x58, 0x58]), 0);
+    await waitFor(() => b.stats().refused.malformed_packet === 1, 2_000, "malformed refusal");
   });
 
   it("drops a client that sends nothing within the CONNECT timeout", async () => {
