@@ -304,7 +304,15 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
         socket.setNoDelay(true);
         c.connectionsAccepted++;
         sockets.add(socket);
-        guards.set(socket, guardSocket(socket, limits, refuse));
+        const ip = socket.remoteAddress ?? "";
+        guards.set(
+          socket,
+          guardSocket(socket, limits, (reason) => {
+            refuse(reason);
+            const client = socket.client;
+            audit.record({ action: "mqtt.connection_refused", actor: actorFor(undefined), ip, targetType: "mqtt_client", targetId: client?.id?.slice(0, 128) ?? null, details: { reason } });
+          }),
+        );
         socket.once("close", () => sockets.delete(socket));
         aedes.handle(socket);
       });

@@ -194,6 +194,7 @@ describe("socket limits before parsing", () => {
     // Closed long before the 20 MB were through, and well inside the 10 s CONNECT timeout.
     expect(sent).toBeLessThan(20_000_000);
     expect(b.stats().refused[reason]).toBe(1);
+    await waitFor(() => count(t.db, "SELECT count(*) AS n FROM audit_log WHERE action = 'mqtt.connection_refused' AND details LIKE ?", `%${reason}%`) === 1, 2_000, "audit row");
   });
 
   it("drops a signed-in client sending a packet over the limit", async () => {
