@@ -64,7 +64,6 @@ export function topicMatches(filter: string, topic: string): boolean {
 const RESTORED_BROKER_ID = "restored";
 
 class OutgoingQueue {
-  seq = 0;
   readonly items = new Map<number, Packet>();
   private byCounter = new Map<string, number>();
   private byMessageId = new Map<number, number>();
@@ -73,10 +72,9 @@ class OutgoingQueue {
     return `${p.brokerId}\u0000${p.brokerCounter}`;
   }
 
-  push(p: Packet, s = ++this.seq): number {
+  push(p: Packet, s: number): void {
     this.items.set(s, p);
     this.byCounter.set(OutgoingQueue.key(p), s);
-    return s;
   }
 
   private setMessageId(s: number, p: Packet, messageId: number | undefined): void {
@@ -131,12 +129,14 @@ export class FastMemoryPersistence {
   private wills = new Map<string, Packet>();
   private destroyed = false;
   private broker: { id: string } | null = null;
+  /** Numbers queued messages across all clients (the queue file's key). */
+  private seq = 0;
 
   constructor(private readonly opts: PersistenceOptions = {}) {
     for (const r of opts.queueFile?.load() ?? []) {
-      const q = this.queue(r.clientId);
       const p = copyPacket({ topic: r.topic, payload: r.payload, qos: r.qos, retain: r.retain, brokerId: RESTORED_BROKER_ID, brokerCounter: r.seq });
-      q.seq = q.push(p, r.seq);
+      this.queue(r.clientId).push(p, r.seq);
+      this.seq = Math.max(this.seq, r.seq);
     }
   }
 
@@ -239,7 +239,8 @@ export class FastMemoryPersistence {
     const q = this.queue(clientId);
     if (this.opts.shouldDrop?.(clientId, q.items.size)) return;
     const p = copyPacket(packet);
-    const s = q.push(p);
+    const s = ++this.seq;
+    q.push(p, s);
     this.opts.queueFile?.added(clientId, s, p);
   }
 
@@ -259,7 +260,7 @@ export class FastMemoryPersistence {
 
   async outgoingClearMessageId(client: ClientRef, packet: { messageId?: number }): Promise<Packet | undefined> {
     const hit = this.outgoing.get(client.id)?.clear(packet.messageId);
-    if (hit) this.opts.queueFile?.removed(client.id, hit.s);
+    if (hit) this.opts.queueFile?.removed(hit.s);
     return hit?.p;
   }
 

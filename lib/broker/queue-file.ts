@@ -17,35 +17,52 @@ export type QueuedPacket = { topic: string; payload: Buffer; qos: number; retain
 export type QueueRow = QueuedPacket & { clientId: string; seq: number };
 
 export type QueueFile = {
-  /** Everything still queued, oldest first within each client. */
+  /** Everything still queued, in the order it was queued. */
   load(): QueueRow[];
+  /** `seq` is unique across clients and increasing. */
   added(clientId: string, seq: number, packet: Omit<QueuedPacket, "retain"> & { retain?: boolean }): void;
-  removed(clientId: string, seq: number): void;
+  removed(seq: number): void;
   /** Commits what is pending now. */
   flush(): void;
   close(): void;
   readonly writeErrors: number;
 };
 
+const ROWS_PER_INSERT = 64;
+
 export function openQueueFile(file: string, log: (msg: string) => void = () => {}): QueueFile {
   if (file !== ":memory:") fs.mkdirSync(path.dirname(file), { recursive: true });
   const db = new Database(file);
   db.pragma("journal_mode = WAL");
   db.pragma("synchronous = NORMAL");
-  db.exec(`CREATE TABLE IF NOT EXISTS outgoing (
-    client_id TEXT NOT NULL, seq INTEGER NOT NULL, topic TEXT NOT NULL, payload BLOB NOT NULL,
-    qos INTEGER NOT NULL, retain INTEGER NOT NULL, PRIMARY KEY (client_id, seq)) WITHOUT ROWID`);
-  const insert = db.prepare("INSERT OR REPLACE INTO outgoing (client_id, seq, topic, payload, qos, retain) VALUES (?, ?, ?, ?, ?, ?)");
-  const remove = db.prepare("DELETE FROM outgoing WHERE client_id = ? AND seq = ?");
-  const pendingAdds = new Map<string, QueueRow>();
-  let pendingRemoves: [string, number][] = [];
+  // The sequence is the row id: new rows append at the end of the table and acknowledged runs go in one range.
+  db.exec(`CREATE TABLE IF NOT EXISTS outgoing (seq INTEGER PRIMARY KEY, client_id TEXT NOT NULL, topic TEXT NOT NULL,
+    payload BLOB NOT NULL, qos INTEGER NOT NULL, retain INTEGER NOT NULL)`);
+  const insertSql = (n: number) =>
+    `INSERT OR REPLACE INTO outgoing (seq, client_id, topic, payload, qos, retain) VALUES ${Array(n).fill("(?, ?, ?, ?, ?, ?)").join(", ")}`;
+  const insertMany = db.prepare(insertSql(ROWS_PER_INSERT));
+  const insertOne = db.prepare(insertSql(1));
+  const removeRange = db.prepare("DELETE FROM outgoing WHERE seq BETWEEN ? AND ?");
+  const pendingAdds = new Map<number, QueueRow>();
+  let pendingRemoves: number[] = [];
   let scheduled = false;
   let closed = false;
   let writeErrors = 0;
 
+  const params = (r: QueueRow) => [r.seq, r.clientId, r.topic, r.payload, r.qos, r.retain ? 1 : 0];
   const commit = db.transaction(() => {
-    for (const r of pendingAdds.values()) insert.run(r.clientId, r.seq, r.topic, r.payload, r.qos, r.retain ? 1 : 0);
-    for (const [clientId, seq] of pendingRemoves) remove.run(clientId, seq);
+    const rows = [...pendingAdds.values()];
+    let i = 0;
+    for (; i + ROWS_PER_INSERT <= rows.length; i += ROWS_PER_INSERT) insertMany.run(rows.slice(i, i + ROWS_PER_INSERT).flatMap(params));
+    for (; i < rows.length; i++) insertOne.run(params(rows[i]!));
+    // Acknowledgements come mostly in order: consecutive sequence numbers go as one range.
+    const seqs = pendingRemoves.sort((x, y) => x - y);
+    for (let j = 0; j < seqs.length; ) {
+      let k = j;
+      while (k + 1 < seqs.length && seqs[k + 1] === seqs[k]! + 1) k++;
+      removeRange.run(seqs[j], seqs[k]);
+      j = k + 1;
+    }
   });
 
   function flush() {
@@ -70,18 +87,18 @@ export function openQueueFile(file: string, log: (msg: string) => void = () => {
   return {
     load() {
       const rows = db
-        .prepare("SELECT client_id AS clientId, seq, topic, payload, qos, retain FROM outgoing ORDER BY client_id, seq")
+        .prepare("SELECT client_id AS clientId, seq, topic, payload, qos, retain FROM outgoing ORDER BY seq")
         .all() as (Omit<QueueRow, "retain"> & { retain: number })[];
       return rows.map((r) => ({ ...r, retain: r.retain === 1 }));
     },
     added(clientId, seq, p) {
-      pendingAdds.set(`${clientId}\u0000${seq}`, { clientId, seq, topic: p.topic, payload: p.payload, qos: p.qos, retain: !!p.retain });
+      pendingAdds.set(seq, { clientId, seq, topic: p.topic, payload: p.payload, qos: p.qos, retain: !!p.retain });
       schedule();
     },
-    removed(clientId, seq) {
+    removed(seq) {
       // Acknowledged before it was written: nothing to write either way.
-      if (pendingAdds.delete(`${clientId}\u0000${seq}`)) return;
-      pendingRemoves.push([clientId, seq]);
+      if (pendingAdds.delete(seq)) return;
+      pendingRemoves.push(seq);
       schedule();
     },
     flush,
