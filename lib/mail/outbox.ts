@@ -11,6 +11,7 @@ import {
   markOutboxFailed,
   markOutboxSent,
   receivedByMessageId,
+  releaseDeferredOutbox,
   settleStaleClaim,
   staleClaims,
 } from "@/db/mail";
@@ -28,6 +29,10 @@ import { messageIdFor } from "./message-id";
 //   and sending → sent only after the server's 250 reply to DATA. Two senders never send the same row.
 // - Failure: connection trouble and 4xx replies put the row back to pending with exponential backoff (never given up,
 //   so an SMTP outage loses nothing); a 5xx refusal is retried too but given up ("failed") after MAIL_MAX_REJECTIONS.
+// - Recovery: while the server is unreachable, one message is tried every MAIL_PROBE_S ahead of its own back-off; the
+//   first delivery releases every row deferred for connection trouble, so the backlog drains at once and in queue order.
+// - Order within a notice thread: an escalation, re-alarm or all-clear is not sent while a first notice of the same
+//   thread is still pending (db/mail.ts), so the next contact never hears before the person told first.
 // - Crash between the server's acceptance and our "sent" mark: the row is left in "sending". After
 //   MAIL_CLAIM_TIMEOUT_S it is settled. If the server is known to have the message (the built-in fake shares this
 //   database, so its mailbox is checked for the Message-ID) the row is marked sent: at-most-once. Otherwise Airkeep
@@ -98,7 +103,8 @@ export function enqueueMail(db: Db, mail: NewMail, opts: { from: string; now?: n
 export type SenderOptions = Pick<
   MailConfig,
   "smtpUrl" | "from" | "pollMs" | "retryBaseMs" | "retryMaxMs" | "maxRejections" | "claimTimeoutMs" | "sendTimeoutMs"
-> & {
+> &
+  Partial<Pick<MailConfig, "probeMs">> & {
   db: Db;
   /** Whether the SMTP server is known to hold a message with this Message-ID (used to settle stale claims). */
   acceptedProbe?: (messageId: string) => { serverMessageId: string | null } | null;
@@ -163,6 +169,10 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
   let again = false;
   let closed = false;
   let serverDown = false;
+  // From this time on a row deferred for connection trouble may be tried before its own back-off ends (0: at once,
+  // so a sender restarted during an outage finds out soon whether the server is back).
+  let probeAt = 0;
+  const probeMs = opts.probeMs ?? 5000;
 
   const event = (row: MailOutboxRow, action: string, text: string, details: Record<string, unknown> = {}) =>
     appendEvent(db, {
@@ -246,17 +256,21 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
     const result = { sent: 0, failed: 0 };
     settleStale(Date.now());
     while (!closed) {
-      const row = claimNextOutbox(db, Date.now(), token);
+      const now = Date.now();
+      const row = claimNextOutbox(db, now, token, { probe: now >= probeAt });
       if (!row) break;
       const outcome = await sendOne(row);
       if (outcome === "sent") {
         result.sent++;
         if (serverDown) log("mail server reachable again");
         serverDown = false;
+        const released = releaseDeferredOutbox(db, Date.now());
+        if (released) log(`${released} message(s) waiting out their back-off released: the server takes mail again`);
       } else if (outcome === "unreachable") {
         result.failed++;
         if (!serverDown) log(`mail server ${new URL(opts.smtpUrl).host} unreachable; mail stays queued and is retried with backoff`);
         serverDown = true;
+        probeAt = Date.now() + probeMs;
         break; // the next due rows would fail the same way: wait for the next poll
       } else if (outcome === "rejected") result.failed++;
     }
