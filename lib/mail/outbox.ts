@@ -172,7 +172,7 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
   // From this time on a row deferred for connection trouble may be tried before its own back-off ends (0: at once,
   // so a sender restarted during an outage finds out soon whether the server is back).
   let probeAt = 0;
-  const probeMs = opts.probeMs ?? 5000;
+  const probeMs = opts.probeMs ?? 2000;
 
   const event = (row: MailOutboxRow, action: string, text: string, details: Record<string, unknown> = {}) =>
     appendEvent(db, {
