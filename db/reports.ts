@@ -4,7 +4,8 @@ import { priorities } from "@/shared/alarm-rules";
 import {
   alarmBenchmarks,
   assessAlarmLoad,
-  FLOOD_THRESHOLD,
+  busiestTenMinutes,
+  floodEpisodes,
   STALE_AFTER_MS,
   TEN_MINUTES_MS,
   type AlarmLoadFigures,
@@ -626,7 +627,6 @@ export function alarmLoad(
 ): AlarmLoadFigures {
   const { from, to } = window;
   const periodS = Math.max(0, (to - from) / 1000);
-  const tenMinutePeriods = Math.ceil((to - from) / TEN_MINUTES_MS);
   const only = opts.compressorId ? " AND compressor_id = $c" : "";
   const p = { site: siteId, from, to, c: opts.compressorId ?? null };
   const byPriority = Object.fromEntries(priorities.map((x) => [x, 0])) as Record<Priority, number>;
@@ -638,16 +638,13 @@ export function alarmLoad(
     byPriority[r.priority] = r.n;
   }
   const alarms = priorities.reduce((a, x) => a + byPriority[x], 0);
-  const flood = one<{ flood: number | null; peak: number | null; peakBucket: number | null }>(
-    db,
-    `WITH buckets AS (
-       SELECT CAST((raised_at - $from) / ${TEN_MINUTES_MS} AS INTEGER) AS b, COUNT(*) AS n FROM alarms
-       WHERE site_id = $site AND raised_at >= $from AND raised_at < $to${only} GROUP BY b
-     )
-     SELECT SUM(n > ${FLOOD_THRESHOLD}) AS flood, MAX(n) AS peak, (SELECT b FROM buckets ORDER BY n DESC, b LIMIT 1) AS peakBucket
-     FROM buckets`,
-    p,
-  );
+  // Raise times from 10 minutes before the period, so the flood rate at its start is right.
+  const times = prepared(db, `SELECT raised_at FROM alarms WHERE site_id = $site AND raised_at >= $from - ${TEN_MINUTES_MS} AND raised_at < $to${only} ORDER BY raised_at`)
+    .pluck()
+    .all(p) as number[];
+  const floods = floodEpisodes(times, from, to, positions);
+  const floodS = floods.reduce((a, e) => a + (e.end - e.start), 0) / 1000;
+  const peak = busiestTenMinutes(times.filter((t) => t >= from));
   const topRows = all<{ compressorId: number; compressorName: string; key: string; priority: Priority; n: number }>(
     db,
     `SELECT a.compressor_id AS compressorId, COALESCE(c.name, '#' || a.compressor_id) AS compressorName, a.key AS key,
@@ -692,14 +689,14 @@ export function alarmLoad(
     siteId,
     positions,
     periodS,
-    tenMinutePeriods,
     alarms,
     perHour: hours > 0 ? alarms / hours / positions : 0,
     perDay: hours > 0 ? (alarms / hours) * 24 / positions : 0,
-    floodPeriods: flood?.flood ?? 0,
-    floodShare: tenMinutePeriods > 0 ? (flood?.flood ?? 0) / tenMinutePeriods : 0,
-    peakTenMinute: flood?.peak ?? 0,
-    peakTenMinuteAt: flood?.peakBucket != null ? from + flood.peakBucket * TEN_MINUTES_MS : null,
+    floods: floods.length,
+    floodS,
+    floodShare: periodS > 0 ? floodS / periodS : 0,
+    peakTenMinute: peak.count,
+    peakTenMinuteAt: peak.at,
     top,
     topShare: alarms ? top.reduce((a, t) => a + t.count, 0) / alarms : null,
     chatteringOccurrences: chatter.occurrences,

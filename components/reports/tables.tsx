@@ -2,7 +2,7 @@
 
 import type { ReactNode } from "react";
 import { DataTable, type DataColumn } from "@/components/data-table";
-import { alarmBenchmarks, priorityLevel, type StaleAlarm, type TopAlarm } from "@/shared/alarm-load";
+import { alarmBenchmarks, priorityLevel, TEN_MINUTES_MS, type StaleAlarm, type TopAlarm } from "@/shared/alarm-load";
 import {
   eventsHref,
   formatDuration,
@@ -303,6 +303,10 @@ export function BenchmarkTable({ site }: { site: AlarmLoadSite }) {
       cell: (r) =>
         r.id === "rate" || r.id === "flood" || r.id === "priority" ? (
           <a href={eventsHref({ site: site.siteId, kind: "alarm", from: site.from, to: site.to })}>events ›</a>
+        ) : r.id === "peak" && site.figures.peakTenMinuteAt != null ? (
+          <a href={eventsHref({ site: site.siteId, kind: "alarm", from: site.figures.peakTenMinuteAt, to: site.figures.peakTenMinuteAt + TEN_MINUTES_MS })}>
+            busiest 10 min ›
+          </a>
         ) : null,
     },
   ];
