@@ -2,12 +2,12 @@ import { and, eq } from "drizzle-orm";
 import { openDatabase } from "@/db/client";
 import { afterAll, afterEach, beforeEach, describe, expect, it } from "vitest";
 import { mailOutbox, mailReceived, alarms, events, notifyThreads } from "@/db/schema";
-import { mailboxProbe, startOutboxSender, type OutboxSender } from "@/lib/mail/outbox";
+import { mailboxProbe, type OutboxSender } from "@/lib/mail/outbox";
 import { startSmtpFake, type SmtpFake } from "@/lib/mail/smtp-fake";
 import { notifyTick } from "@/lib/notify/notifier";
 import { cautions, SAFETY_NOTICE } from "@/shared/safety";
 import { escapeHtml } from "@/shared/notify-text";
-import { MIN, acknowledge, clearAlarm, openWorld, raiseAlarm, setLastData, tempDir, testConfig, type World } from "./notify-fixtures";
+import { MIN, acknowledge, clearAlarm, openWorld, raiseAlarm, setLastData, tempDir, testConfig, testSender, type World } from "./notify-fixtures";
 
 // The notifier against a real SQLite file and the real SMTP fake on an ephemeral loopback port.
 
@@ -23,20 +23,7 @@ const t0 = Date.UTC(2025, 5, 2, 10, 0, 0);
 beforeEach(async () => {
   w = openWorld(tmp.file(`notify-${++n}.db`), t0);
   fake = await startSmtpFake({ db: w.db, port: 0, log: () => {} });
-  sender = startOutboxSender({
-    db: w.db,
-    smtpUrl: fake.url,
-    from: cfg.from,
-    pollMs: 60_000,
-    retryBaseMs: 20,
-    retryMaxMs: 100,
-    maxRejections: 3,
-    claimTimeoutMs: 60_000,
-    sendTimeoutMs: 5_000,
-    jitter: 0,
-    acceptedProbe: mailboxProbe(w.db),
-    log: () => {},
-  });
+  sender = testSender(w.db, fake.url, { acceptedProbe: mailboxProbe(w.db) });
 });
 
 afterEach(async () => {
@@ -255,19 +242,7 @@ describe("restart safety", () => {
     expect(outbox().length).toBe(before);
     expect(w.db.select().from(notifyThreads).all()).toHaveLength(3);
 
-    sender = startOutboxSender({
-      db: w.db,
-      smtpUrl: fake.url,
-      from: cfg.from,
-      pollMs: 60_000,
-      retryBaseMs: 20,
-      retryMaxMs: 100,
-      maxRejections: 3,
-      claimTimeoutMs: 60_000,
-      sendTimeoutMs: 5_000,
-      jitter: 0,
-      log: () => {},
-    });
+    sender = testSender(w.db, fake.url);
     await sender.runOnce();
     await sender.runOnce();
     const got = received();

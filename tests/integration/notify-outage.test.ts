@@ -1,9 +1,9 @@
 import { afterAll, afterEach, beforeEach, describe, expect, it } from "vitest";
 import { mailOutbox, mailReceived } from "@/db/schema";
-import { mailboxProbe, startOutboxSender, type OutboxSender } from "@/lib/mail/outbox";
+import { mailboxProbe, type OutboxSender } from "@/lib/mail/outbox";
 import { startSmtpFake, type SmtpFake } from "@/lib/mail/smtp-fake";
 import { notifyTick } from "@/lib/notify/notifier";
-import { openWorld, raiseAlarm, tempDir, testConfig, waitFor, type World } from "./notify-fixtures";
+import { openWorld, raiseAlarm, tempDir, testConfig, testSender, waitFor, type World } from "./notify-fixtures";
 
 // A mail-server outage with the notifier, the outbox sender and the real SMTP fake, on the wall clock: first notices
 // must not sit out their own back-off once the server is back, and no escalation may overtake its first notice.
@@ -43,22 +43,8 @@ async function closedPort(): Promise<number> {
 describe("after a mail-server outage", () => {
   it("first notices go as soon as the server is back, before the escalations queued during the outage", async () => {
     const port = await closedPort();
-    sender = startOutboxSender({
-      db: w.db,
-      smtpUrl: `smtp://127.0.0.1:${port}`,
-      from: cfg.from,
-      pollMs: 50,
-      // Each row's own back-off is long (a minute) so that waiting it out would be plain to see.
-      retryBaseMs: 60_000,
-      retryMaxMs: 120_000,
-      probeMs: 150,
-      maxRejections: 3,
-      claimTimeoutMs: 60_000,
-      sendTimeoutMs: 3_000,
-      jitter: 0,
-      acceptedProbe: mailboxProbe(w.db),
-      log: () => {},
-    });
+    // Each row's own back-off is long (a minute) so that waiting it out would be plain to see.
+    sender = testSender(w.db, `smtp://127.0.0.1:${port}`, { pollMs: 50, retryBaseMs: 60_000, retryMaxMs: 120_000, probeMs: 150, acceptedProbe: mailboxProbe(w.db) });
 
     // Two alarms while the server is down: first notices to the on-call contact (and the critical copy).
     const alarmIds = [w.mb1, w.hr1].map((c, i) => raiseAlarm(w.db, { compressorId: c, siteId: i ? w.oslo : w.london, raisedAt: Date.now() }));
@@ -105,19 +91,7 @@ describe("after a mail-server outage", () => {
 
   it("an escalation waits while its first notice is retried after a refusal, and goes once that notice has finally failed", async () => {
     fake = await startSmtpFake({ db: w.db, port: 0, log: () => {} });
-    sender = startOutboxSender({
-      db: w.db,
-      smtpUrl: fake.url,
-      from: cfg.from,
-      pollMs: 60_000,
-      retryBaseMs: 60_000,
-      retryMaxMs: 120_000,
-      maxRejections: 2,
-      claimTimeoutMs: 60_000,
-      sendTimeoutMs: 3_000,
-      jitter: 0,
-      log: () => {},
-    });
+    sender = testSender(w.db, fake.url, { retryBaseMs: 60_000, retryMaxMs: 120_000, maxRejections: 2 });
     const id = raiseAlarm(w.db, { compressorId: w.hr1, siteId: w.oslo, raisedAt: Date.now() });
     notifyTick(w.db, cfg, Date.now());
     // The first notice was refused once (a 5xx reply) and waits out its back-off.
