@@ -147,6 +147,9 @@ export function smtpTransportOptions(smtpUrl: string, timeoutMs: number): SMTPTr
 
 type SmtpError = Error & { code?: string; responseCode?: number; response?: string };
 
+/** nodemailer's and Node's codes for a server that cannot be reached or talked to. */
+const CONNECTION_ERRORS = new Set(["ECONNECTION", "ETIMEDOUT", "ESOCKET", "EDNS", "ETLS", "EPROTOCOL", "ECONNREFUSED", "ECONNRESET", "EHOSTUNREACH", "ENETUNREACH", "EPIPE"]);
+
 /** "250 Message queued as 42" → "42"; other servers' replies are kept whole in serverResponse. */
 export function serverMessageIdOf(response: string | undefined): string | null {
   if (!response) return null;
@@ -231,7 +234,11 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
     } catch (e) {
       const err = e as SmtpError;
       const now = Date.now();
-      const rejected = typeof err.responseCode === "number" && err.responseCode >= 500;
+      const answered = typeof err.responseCode === "number";
+      // The server never answered: the message itself is not at fault (never given up; released when the server is back).
+      const connection = !answered && err.response === undefined && (err.code === undefined || CONNECTION_ERRORS.has(err.code));
+      // A 5xx refusal, or a fault of the message itself found before sending (e.g. EENVELOPE): given up in the end.
+      const rejected = answered ? err.responseCode! >= 500 : !connection;
       const giveUp = rejected && row.attempts >= opts.maxRejections;
       const delay = retryDelayMs(row.attempts, opts.retryBaseMs, opts.retryMaxMs, opts.jitter ?? 0.1);
       const message = `${err.code ?? "ERROR"}${err.responseCode ? ` ${err.responseCode}` : ""}: ${err.message}`;
@@ -239,7 +246,8 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
         status: giveUp ? "failed" : "pending",
         nextAttemptAt: now + delay,
         error: message,
-        serverResponse: err.response ?? null,
+        // Only rows without a server response count as deferred for connection trouble (db/mail.ts).
+        serverResponse: err.response ?? (connection ? null : message),
       });
       if (giveUp) {
         event(row, "mail.failed", `E-mail to ${row.toName} <${row.toAddress}> refused by the mail server, given up after ${row.attempts} attempts: ${row.subject}`, {
