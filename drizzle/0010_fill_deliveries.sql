@@ -1,0 +1,15 @@
+CREATE TABLE `fill_deliveries` (
+	`compressor_id` integer NOT NULL,
+	`start_ts` integer NOT NULL,
+	`end_ts` integer NOT NULL,
+	`from_bar` real NOT NULL,
+	`to_bar` real NOT NULL,
+	`bank_c` real NOT NULL,
+	`free_air_l` real NOT NULL,
+	`delivery_lpm` real NOT NULL,
+	`rated_lpm` real NOT NULL,
+	`share` real NOT NULL,
+	PRIMARY KEY(`compressor_id`, `start_ts`)
+);
+--> statement-breakpoint
+CREATE INDEX `fill_deliveries_end_idx` ON `fill_deliveries` (`end_ts`);
