@@ -1,5 +1,12 @@
 import type { Statement } from "better-sqlite3";
-import { defaultDeliveryAdvisory, type DeliveryAdvisorySettings, type FillDelivery, type FillUnit } from "@/shared/delivery-health";
+import {
+  defaultDeliveryAdvisory,
+  deliveryAdvisory,
+  type DeliveryAdvisorySettings,
+  type DeliveryHealthResponse,
+  type FillDelivery,
+  type FillUnit,
+} from "@/shared/delivery-health";
 import type { Db } from "./client";
 
 // Delivery health's storage: measured fills (fill_deliveries), the units' settings for measuring, and the figures read
@@ -72,20 +79,8 @@ export function deliveryAdvisorySettings(db: Db): DeliveryAdvisorySettings {
   };
 }
 
-export type FillDeliveryDto = {
-  startTs: number;
-  endTs: number;
-  fromBar: number;
-  toBar: number;
-  bankC: number;
-  freeAirL: number;
-  deliveryLpm: number;
-  ratedLpm: number;
-  share: number;
-};
-
 /** The compressor's measured fills since `fromTs`, oldest first (at most `limit`, the newest ones). */
-export function listFillDeliveries(db: Db, compressorId: number, fromTs: number, limit = 500): FillDeliveryDto[] {
+export function listFillDeliveries(db: Db, compressorId: number, fromTs: number, limit = 500): FillDelivery[] {
   return db.$client
     .prepare(
       `SELECT * FROM (
@@ -94,5 +89,12 @@ export function listFillDeliveries(db: Db, compressorId: number, fromTs: number,
          FROM fill_deliveries WHERE compressor_id = ? AND end_ts >= ? ORDER BY end_ts DESC LIMIT ?)
        ORDER BY endTs`,
     )
-    .all(compressorId, fromTs, limit) as FillDeliveryDto[];
+    .all(compressorId, fromTs, limit) as FillDelivery[];
+}
+
+/** The compressor page's delivery-health figures: fills of the last `days` days and the advisory's judgement. */
+export function deliveryHealth(db: Db, compressorId: number, now = Date.now(), days = 90): DeliveryHealthResponse {
+  const settings = deliveryAdvisorySettings(db);
+  const judged = deliveryAdvisory(lastFillShares(db, compressorId, settings.fills), settings);
+  return { fills: listFillDeliveries(db, compressorId, now - days * 86_400_000), settings, ...judged };
 }

@@ -212,3 +212,12 @@ export function deliveryAdvisory(shares: readonly number[], settings: DeliveryAd
   const m = recent.length >= settings.fills ? median(recent) : null;
   return { median: m, low: m !== null && m < settings.minShare };
 }
+
+/** What the compressor page shows: the measured fills (oldest first) and the advisory's judgement of the last ones. */
+export type DeliveryHealthResponse = {
+  fills: FillDelivery[];
+  settings: DeliveryAdvisorySettings;
+  /** Median share of rated over the last settings.fills fills; null with fewer fills. */
+  median: number | null;
+  low: boolean;
+};
