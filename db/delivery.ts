@@ -4,6 +4,8 @@ import {
   deliveryAdvisory,
   type DeliveryAdvisorySettings,
   type DeliveryHealthResponse,
+  type DeliveryMonthRow,
+  median,
   type FillDelivery,
   type FillUnit,
 } from "@/shared/delivery-health";
@@ -97,4 +99,29 @@ export function deliveryHealth(db: Db, compressorId: number, now = Date.now(), d
   const settings = deliveryAdvisorySettings(db);
   const judged = deliveryAdvisory(lastFillShares(db, compressorId, settings.fills), settings);
   return { fills: listFillDeliveries(db, compressorId, now - days * 86_400_000), settings, ...judged };
+}
+
+/** Median delivery of each compressor's fills that ended within its window [from, to) (its site's month). */
+export function deliveryMonthRows(
+  db: Db,
+  units: readonly { compressorId: number; compressorName: string; siteName: string; from: number; to: number }[],
+): DeliveryMonthRow[] {
+  const { minShare } = deliveryAdvisorySettings(db);
+  const stmt = db.$client.prepare(
+    "SELECT delivery_lpm, share, rated_lpm FROM fill_deliveries WHERE compressor_id = ? AND end_ts >= ? AND end_ts < ?",
+  );
+  return units.map((u) => {
+    const rows = stmt.raw().all(u.compressorId, u.from, u.to) as [number, number, number][];
+    const medianShare = median(rows.map((r) => r[1]));
+    return {
+      compressorId: u.compressorId,
+      compressorName: u.compressorName,
+      siteName: u.siteName,
+      fills: rows.length,
+      medianLpm: median(rows.map((r) => r[0])),
+      medianShare,
+      ratedLpm: rows.at(-1)?.[2] ?? null,
+      low: medianShare !== null && medianShare < minShare,
+    };
+  });
 }

@@ -221,3 +221,17 @@ export type DeliveryHealthResponse = {
   median: number | null;
   low: boolean;
 };
+
+/** The monthly report's delivery-health line for one compressor: its fills that ended in the month. */
+export type DeliveryMonthRow = {
+  compressorId: number;
+  compressorName: string;
+  siteName: string;
+  fills: number;
+  /** Median over the month's fills; null without fills (no data, not zero). */
+  medianLpm: number | null;
+  medianShare: number | null;
+  ratedLpm: number | null;
+  /** Median below the advisory's share of rated. */
+  low: boolean;
+};

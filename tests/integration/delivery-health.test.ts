@@ -3,7 +3,7 @@ import os from "node:os";
 import path from "node:path";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type Db, openDatabase } from "@/db/client";
-import { deliveryAdvisorySettings, listFillDeliveries } from "@/db/delivery";
+import { deliveryAdvisorySettings, deliveryMonthRows, listFillDeliveries } from "@/db/delivery";
 import { runMigrations } from "@/db/migrate";
 import { DELIVERY_ALARM_KEY } from "@/lib/delivery/recorder";
 import { backfill } from "@/simulator/backfill";
@@ -76,6 +76,20 @@ describe("delivery health over a week of history", () => {
     expect(alarms[0]).toMatchObject({ id: 2, priority: "advisory", active: 1, limitValue: deliveryAdvisorySettings(db).minShare });
     const ev = db.$client.prepare("SELECT text FROM events WHERE action = 'alarm.raise' AND compressor_id = 2").all() as { text: string }[];
     expect(ev.some((e) => /median delivery of the last fills 7\d % of rated, below 80 %/.test(e.text))).toBe(true);
+  });
+
+  it("gives the report a median per compressor over the month, and no data (not zero) for a month without fills", () => {
+    const window = { from: NOW - 7 * DAY, to: NOW + 1 };
+    const rows = deliveryMonthRows(db, [
+      { compressorId: 1, compressorName: "dh-ok", siteName: "Dive site", ...window },
+      { compressorId: 2, compressorName: "dh-worn", siteName: "Dive site", ...window },
+      { compressorId: 2, compressorName: "dh-worn", siteName: "Dive site", from: NOW - 60 * DAY, to: NOW - 30 * DAY },
+    ]);
+    const worn = listFillDeliveries(db, 2, 0).map((f) => f.deliveryLpm).sort((a, b) => a - b);
+    const mid = worn.length % 2 ? worn[worn.length >> 1]! : (worn[worn.length / 2 - 1]! + worn[worn.length / 2]!) / 2;
+    expect(rows[1]).toMatchObject({ fills: worn.length, medianLpm: mid, ratedLpm: 250, low: true });
+    expect(rows[0]!.low).toBe(false);
+    expect(rows[2]).toMatchObject({ fills: 0, medianLpm: null, medianShare: null, low: false });
   });
 
   it("reads its settings from the settings table, falling back to the defaults on nonsense", () => {
