@@ -634,7 +634,11 @@ export const fillDeliveries = sqliteTable(
     ratedLpm: real("rated_lpm").notNull(),
     share: real("share").notNull(),
   },
-  (t) => [primaryKey({ columns: [t.compressorId, t.startTs] }), index("fill_deliveries_end_idx").on(t.endTs)],
+  (t) => [
+    primaryKey({ columns: [t.compressorId, t.startTs] }),
+    // month medians, the last N fills and the page's list all read one compressor's fills by end time
+    index("fill_deliveries_end_idx").on(t.compressorId, t.endTs, t.share, t.deliveryLpm, t.ratedLpm),
+  ],
 );
 
 export type FillDeliveryRow = typeof fillDeliveries.$inferSelect;

@@ -12,4 +12,4 @@ CREATE TABLE `fill_deliveries` (
 	PRIMARY KEY(`compressor_id`, `start_ts`)
 );
 --> statement-breakpoint
-CREATE INDEX `fill_deliveries_end_idx` ON `fill_deliveries` (`end_ts`);
+CREATE INDEX `fill_deliveries_end_idx` ON `fill_deliveries` (`compressor_id`,`end_ts`,`share`,`delivery_lpm`,`rated_lpm`);
