@@ -297,20 +297,21 @@ describe("comms, events and fill rate", () => {
     );
   });
 
-  it("computes the fill rate from the last minute of delivery pressure while running", async () => {
+  it("computes the fill rate once a minute of the run gives a steady slope, and drops it when the unit stops", async () => {
     const d = dev.get("hp-9")!;
     const c = await device("hp-9");
-    const start = Date.now() - 40_000;
+    const start = Date.now() - 70_000;
     // 0.25 bar/s = 15 bar/min
-    for (let i = 0; i <= 30; i++) {
-      await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 1_000, seq: 100 + i, deliveryBar: 200 + i * 0.25 })), {
-        qos: 1,
-      });
-    }
-    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 30_000, 3_000, "last reading");
+    const send = async (i: number) =>
+      c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 1_000, seq: 100 + i, deliveryBar: 200 + i * 0.25 })), { qos: 1 });
+    for (let i = 0; i <= 30; i++) await send(i);
+    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 30_000, 3_000, "half a minute");
+    expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeNull();
+    for (let i = 31; i <= 60; i++) await send(i);
+    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 60_000, 3_000, "a minute");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeCloseTo(15, 6);
-    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + 31_000, seq: 131, runState: "standby", motorOn: false })), { qos: 1 });
-    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 31_000, 3_000, "standby reading");
+    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + 61_000, seq: 161, runState: "standby", motorOn: false })), { qos: 1 });
+    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 61_000, 3_000, "standby reading");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeNull();
   });
 });
