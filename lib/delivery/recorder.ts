@@ -29,9 +29,9 @@ export function createDeliveryRecorder(db: Db, opts: { alarms: AlarmEngine | nul
   const st = { fills: 0, readings: 0 };
   const running = runStateCode.running;
 
-  function refresh(): void {
+  function refresh(force = false): void {
     const now = clock();
-    if (now - loadedAt < refreshMs) return;
+    if (now - loadedAt < (force ? 1_000 : refreshMs)) return;
     units = deliveryUnits(db);
     settings = deliveryAdvisorySettings(db);
     loadedAt = now;
@@ -43,6 +43,8 @@ export function createDeliveryRecorder(db: Db, opts: { alarms: AlarmEngine | nul
       const transitions: AlarmTransition[] = [];
       let fills = 0;
       for (const r of rows) {
+        // a compressor added since the last look is measured from its first readings
+        if (!units.has(r.compressorId)) refresh(true);
         const unit = units.get(r.compressorId);
         if (!unit || !(unit.bankVolumeL > 0)) continue;
         let t = trackers.get(r.compressorId);
