@@ -49,6 +49,7 @@ type BoardRow = StateColumns & {
   ratedPressureBar: number;
   stopPressureBar: number;
   restartPressureBar: number;
+  bankVolumeL: number;
   inService: number;
 };
 
@@ -91,7 +92,7 @@ function prepared(db: Db) {
       compressors: db.$client.prepare(
         `SELECT c.id AS id, c.name AS name, c.site_id AS siteId, m.name AS modelName, m.stages AS stages,
                 m.rated_pressure_bar AS ratedPressureBar, c.stop_pressure_bar AS stopPressureBar,
-                c.restart_pressure_bar AS restartPressureBar, c.in_service AS inService, ${stateSelect}
+                c.restart_pressure_bar AS restartPressureBar, c.bank_volume_l AS bankVolumeL, c.in_service AS inService, ${stateSelect}
          FROM compressors c
          JOIN sites si ON si.id = c.site_id
          JOIN compressor_models m ON m.id = c.model_id
@@ -126,6 +127,7 @@ export function loadBoard(db: Db, siteIds: number[] | null, now = Date.now()): B
     ratedPressureBar: r.ratedPressureBar,
     stopPressureBar: r.stopPressureBar,
     restartPressureBar: r.restartPressureBar,
+    bankVolumeL: r.bankVolumeL,
     inService: r.inService === 1,
     live: stateToLive(r.id, r),
     liveStamp: r.updatedAt ?? 0,

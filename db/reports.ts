@@ -1,3 +1,5 @@
+import { deliveryMonthRows } from "./delivery";
+import type { DeliveryMonthRow } from "@/shared/delivery-health";
 import type { Statement } from "better-sqlite3";
 import type { Priority } from "@/shared/alarm-rules";
 import { priorities } from "@/shared/alarm-rules";
@@ -774,7 +776,16 @@ export function buildMonthlyReport(db: Db, req: ReportRequest): MonthlyReport | 
       note: plannedRecorded ? "Planned service from the event log (service.planned_start / service.planned_end)." : NO_PLANNED_SERVICE_NOTE,
     },
     alarmLoad: alarmLoadSites,
+    delivery: monthDelivery(db, cms),
   };
+}
+
+/** Delivery health of the scope's compressors over their sites' month (db/delivery.ts). */
+function monthDelivery(db: Db, cms: readonly CompressorMonth[]): DeliveryMonthRow[] {
+  return deliveryMonthRows(
+    db,
+    cms.map((c) => ({ compressorId: c.compressor.id, compressorName: c.compressor.name, siteName: c.site.name, from: c.window.from, to: c.window.to })),
+  );
 }
 
 /** Headline figures of the 12 months ending with `month` (oldest first), for the month-to-month comparison. */

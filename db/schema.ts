@@ -623,3 +623,33 @@ export type OnCallEntryRow = typeof onCallEntries.$inferSelect;
 export type NotifyThreadRow = typeof notifyThreads.$inferSelect;
 export type MailOutboxRow = typeof mailOutbox.$inferSelect;
 export type MailReceivedRow = typeof mailReceived.$inferSelect;
+
+// ---- Delivery health: free air delivered per bank fill (shared/delivery-health.ts) ----
+
+/** One measured fill: the free air the compressor delivered into its bank per minute, against its rating. */
+export const fillDeliveries = sqliteTable(
+  "fill_deliveries",
+  {
+    compressorId: integer("compressor_id").notNull(),
+    /** Device time the measured (clean) stretch of the fill began, and its end at stop pressure. */
+    startTs: integer("start_ts").notNull(),
+    endTs: integer("end_ts").notNull(),
+    fromBar: real("from_bar").notNull(),
+    toBar: real("to_bar").notNull(),
+    /** Bank temperature assumed (the intake temperature over the stretch), °C. */
+    bankC: real("bank_c").notNull(),
+    /** Free air delivered over the stretch, litres at 1 bar(a), 20 °C. */
+    freeAirL: real("free_air_l").notNull(),
+    deliveryLpm: real("delivery_lpm").notNull(),
+    /** The model's rated delivery when the fill was measured. */
+    ratedLpm: real("rated_lpm").notNull(),
+    share: real("share").notNull(),
+  },
+  (t) => [
+    primaryKey({ columns: [t.compressorId, t.startTs] }),
+    // month medians, the last N fills and the page's list all read one compressor's fills by end time
+    index("fill_deliveries_end_idx").on(t.compressorId, t.endTs, t.share, t.deliveryLpm, t.ratedLpm),
+  ],
+);
+
+export type FillDeliveryRow = typeof fillDeliveries.$inferSelect;

@@ -1,3 +1,4 @@
+import type { DeliveryMonthRow } from "./delivery-health";
 import { z } from "zod";
 import type { AlarmLoadFigures, BenchmarkResult } from "./alarm-load";
 import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
@@ -535,6 +536,8 @@ export type MonthlyReport = {
   outages: OutageRow[];
   plannedService: { recorded: boolean; note: string };
   alarmLoad: AlarmLoadSite[];
+  /** Free air delivered per fill, median per compressor (shared/delivery-health.ts). */
+  delivery: DeliveryMonthRow[];
 };
 
 export type ComparisonRow = {

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { realGasMinutesToPressure } from "./air";
 import type { CompressorDto } from "./compressor-schema";
 import { STALE_AFTER_MS, type LiveCompressor } from "./live";
 import type { RunState } from "./telemetry";
@@ -92,22 +93,40 @@ export function minutesParts(minutes: number | null): { value: string; unit: str
 
 /** Below this rise the bank is not being filled (sensor noise, a leak-down while running unloaded). */
 export const MIN_FILL_RATE_BAR_PER_MIN = 0.05;
+/** The fill rate is the least-squares slope of delivery pressure over this window of one run (the ingester's). */
+export const FILL_RATE_WINDOW_MS = 120_000;
+/** It is shown, and projected, only once it spans this much of the run and its standard error is within this share. */
+export const FILL_RATE_MIN_SPAN_MS = 60_000;
+export const FILL_RATE_MAX_REL_ERROR = 0.1;
+/** Bank temperature assumed when the intake temperature is unknown, °C (the free-air reference temperature). */
+const DEFAULT_BANK_C = 20;
 
 /**
- * Minutes until the delivery pressure reaches the stop setpoint at the present fill rate:
- * (stop − current) / rate. Null when the compressor is not filling (not running, no rate, falling or flat).
- * Zero when it is filling and already at or above the stop pressure.
+ * Minutes until the delivery pressure reaches the stop setpoint, projected with real-gas behaviour: the compressor
+ * delivers a steady amount of air per minute, so the pressure rises faster as the bank fills (Z grows above ~150 bar);
+ * a straight line through today's slope would overstate the time. The bank is taken at the intake temperature.
+ * Null — show nothing — when the unit is not filling a bank, or the rate is not yet steady (the ingester sends no
+ * rate until it is). Zero when it is filling and already at or above the stop pressure.
  */
 export function timeToStopMinutes(
-  live: Pick<LiveCompressor, "runState" | "deliveryBar" | "fillRateBarPerMin"> | null | undefined,
+  live: Pick<LiveCompressor, "runState" | "deliveryBar" | "fillRateBarPerMin" | "intakeC"> | null | undefined,
   stopPressureBar: number,
+  bankVolumeL: number,
 ): number | null {
-  if (!live || live.runState !== "running") return null;
+  if (!live || live.runState !== "running" || !(bankVolumeL > 0)) return null;
   const { deliveryBar, fillRateBarPerMin: rate } = live;
   if (deliveryBar == null || rate == null || !Number.isFinite(rate) || !Number.isFinite(deliveryBar)) return null;
   if (rate < MIN_FILL_RATE_BAR_PER_MIN) return null;
-  return Math.max(0, (stopPressureBar - deliveryBar) / rate);
+  if (deliveryBar >= stopPressureBar) return 0;
+  // the slope describes the middle of its window, half a window's rise below the latest reading
+  const at = Math.max(0, deliveryBar - (rate * FILL_RATE_WINDOW_MS) / 120_000);
+  const tC = live.intakeC ?? DEFAULT_BANK_C;
+  const minutes = realGasMinutesToPressure(at, rate, stopPressureBar, tC) - (deliveryBar - at) / rate;
+  return Math.max(0, minutes);
 }
+
+/** The label beside the figure: it is the bank's own setpoint, not something Airkeep does to the machine. */
+export const TIME_TO_STOP_LABEL = "To stop pressure";
 
 // ---- Horizontal band ------------------------------------------------------------------------------
 
@@ -299,6 +318,7 @@ export type BoardCompressor = {
   ratedPressureBar: number;
   stopPressureBar: number;
   restartPressureBar: number;
+  bankVolumeL: number;
   inService: boolean;
   live: LiveCompressor | null;
   /** Server time at which `live` was known to be current; the newer of two versions wins. */

@@ -3,6 +3,7 @@ import type { Db } from "../db/client";
 import { createReadingStore } from "../db/readings";
 import { acknowledgeAlarms } from "../db/alarms";
 import { createAlarmEngine } from "../lib/alarms/engine";
+import { createDeliveryRecorder } from "../lib/delivery/recorder";
 import { createTelemetryStateWriter, type DeviceEventInput } from "../db/telemetry-state";
 import type { ReadingInput } from "../shared/telemetry";
 import { DeviceSim } from "./device-sim";
@@ -78,6 +79,8 @@ export function backfill(opts: BackfillOptions): BackfillResult {
   const events = createTelemetryStateWriter(opts.db);
   // History goes through the same alarm engine as live readings, so the demo has alarms and an event log.
   const alarmEngine = opts.alarms === false ? null : createAlarmEngine(opts.db);
+  // ... and the same delivery-health measurement of each fill.
+  const delivery = createDeliveryRecorder(opts.db, { alarms: alarmEngine, now: () => 0 });
 
   const compressorIdOf = sqlite.prepare("SELECT id FROM compressors WHERE device_id = ?");
   const bounds = sqlite.prepare(
@@ -204,14 +207,15 @@ export function backfill(opts: BackfillOptions): BackfillResult {
           result.inserted += r.inserted;
           result.duplicates += r.duplicates;
         }
+        const batch = old.length ? old.concat(raw) : raw;
         if (alarmEngine) {
-          const batch = old.length ? old.concat(raw) : raw;
           if (batch.length) opts.db.$client.transaction(() => alarmEngine.onReadings(batch, batch[batch.length - 1]!.ts)).immediate();
           for (const e of evs) {
             if (e.kind === "comms_lost") alarmEngine.onCommsLost(e.compressorId, e.ts, e.ts);
             else if (e.kind === "comms_restored") alarmEngine.onCommsRestored(e.compressorId, e.ts, e.ts);
           }
         }
+        if (batch.length) opts.db.$client.transaction(() => delivery.onReadings(batch)).immediate();
         if (evs.length > 0) result.events += events.insertEvents(evs);
         raw = [];
         old = [];

@@ -5,6 +5,7 @@ import { useState } from "react";
 import { createCompressorModel, updateCompressorModel } from "@/app/(app)/admin/models/actions";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
+import { FREE_AIR_BASIS, FREE_AIR_BASIS_SHORT } from "@/shared/air";
 import {
   compressorModelInputSchema,
   compressorModelUpdateSchema,
@@ -35,7 +36,7 @@ export function ModelsAdmin() {
       header: "Rated delivery",
       numeric: true,
       sortValue: (m) => m.ratedDeliveryLpm,
-      cell: (m) => `${m.ratedDeliveryLpm} l/min`,
+      cell: (m) => `${m.ratedDeliveryLpm} l/min (${FREE_AIR_BASIS_SHORT})`,
     },
     {
       id: "pressure",
@@ -149,7 +150,7 @@ function ModelForm({
         <TextField form={form} name="name" label="Name" maxLength={120} />
         <TextField form={form} name="maker" label="Maker" maxLength={120} hint="Optional." />
         <SelectField form={form} name="stages" label="Stages" placeholder="Choose…" options={stageOptions} />
-        <TextField form={form} name="ratedDeliveryLpm" label="Rated delivery" unit="l/min" numeric hint="Free air delivered, litres per minute." />
+        <TextField form={form} name="ratedDeliveryLpm" label="Rated delivery" unit="l/min" numeric hint={`Free air delivered, litres per minute: ${FREE_AIR_BASIS}.`} />
         <TextField
           form={form}
           name="ratedPressureBar"

@@ -6,6 +6,7 @@ import {
   formatAge,
   minutesParts,
   timeToStopMinutes,
+  TIME_TO_STOP_LABEL,
   type BoardCompressor,
 } from "@/shared/board";
 import { tripCodeLabel } from "@/shared/trip-codes";
@@ -50,7 +51,7 @@ export const CompressorTile = memo(function CompressorTile({
   const live = c.live;
   const p = units.pressureUnit;
   const delivery = pressureParts(live?.deliveryBar, p);
-  const toStop = current ? timeToStopMinutes(live, c.stopPressureBar) : null;
+  const toStop = current ? timeToStopMinutes(live, c.stopPressureBar, c.bankVolumeL) : null;
   const tripLabel = live?.runState === "tripped" ? tripCodeLabel(live.tripCode) : "";
   const restart = pressureShort(c.restartPressureBar, p);
   const stop = pressureShort(c.stopPressureBar, p);
@@ -139,7 +140,7 @@ export const CompressorTile = memo(function CompressorTile({
       <dl className="grid grid-cols-3 gap-[0.5em]">
         <Figure label="Final stage" q={temperatureParts(finalStageC(live, c.stages), units.temperatureUnit)} current={current} testId="final-stage-value" />
         <Figure label="Oil" q={pressureParts(live?.oilBar, p)} current={current} testId="oil-value" />
-        <Figure label="To stop" q={minutesParts(toStop)} current={current} testId="to-stop-value" />
+        <Figure label={TIME_TO_STOP_LABEL} q={minutesParts(toStop)} current={current} testId="to-stop-value" />
       </dl>
     </article>
   );

@@ -12,6 +12,7 @@ import {
   type CompressorDetail,
 } from "@/shared/board";
 import type { LiveMessage } from "@/shared/live";
+import { FREE_AIR_BASIS } from "@/shared/air";
 import { cautions } from "@/shared/safety";
 import { tripCodeInfo, tripCodeLabel } from "@/shared/trip-codes";
 import {
@@ -97,13 +98,14 @@ function pressureBand(label: string, bar: number | null, unit: PressureUnit, ran
   );
 }
 
-function Fact({ label, value, testId }: { label: string; value: ReactNode; testId?: string }) {
+function Fact({ label, value, testId, note }: { label: string; value: ReactNode; testId?: string; note?: string }) {
   return (
     <div>
       <dt className="text-xs text-muted">{label}</dt>
       <dd className="num text-lg font-semibold" data-testid={testId}>
         {value}
       </dd>
+      {note && <dd className="text-xs text-muted">{note}</dd>}
     </div>
   );
 }
@@ -129,7 +131,7 @@ export function CompressorLive({ id }: { id: number }) {
   const stop = pressureShort(c.stopPressureBar, p);
   const rated = pressureShort(c.ratedPressureBar, p);
   const trip = v?.runState === "tripped" ? tripCodeInfo(v.tripCode) : null;
-  const toStop = current ? timeToStopMinutes(v, c.stopPressureBar) : null;
+  const toStop = current ? timeToStopMinutes(v, c.stopPressureBar, c.bankVolumeL) : null;
   const stages = Array.from({ length: c.stages }, (_, i) => i);
   const ageText = condition.freshness === "nodata" ? "No reading yet" : `Last reading ${formatAge(condition.ageMs)}`;
 
@@ -259,7 +261,7 @@ export function CompressorLive({ id }: { id: number }) {
           <Fact label="Stop pressure" value={`${stop} ${pressureLabel(p)}`} testId="stop-setpoint" />
           <Fact label="Restart pressure" value={`${restart} ${pressureLabel(p)}`} testId="restart-setpoint" />
           <Fact label="Rated pressure" value={`${rated} ${pressureLabel(p)}`} />
-          <Fact label="Rated delivery" value={`${c.ratedDeliveryLpm} l/min`} />
+          <Fact label="Rated delivery" value={`${c.ratedDeliveryLpm} l/min`} note={FREE_AIR_BASIS} />
           <Fact label="Bank volume" value={c.bankVolumeL ? `${c.bankVolumeL} l` : "none"} />
         </dl>
       </section>

@@ -1,5 +1,6 @@
 import { keepPreviousData, queryOptions } from "@tanstack/react-query";
 import type { DeviceEventDto } from "@/db/trends";
+import type { DeliveryHealthResponse } from "@/shared/delivery-health";
 import { trendSpanMs, type TrendResponse, type TrendSignal, type TrendSpan } from "@/shared/board";
 import { HttpError } from "./live";
 
@@ -37,6 +38,13 @@ export const trendQueries = {
       refetchInterval: (q) => (q.state.data && q.state.data.to < Date.now() - 60_000 ? false : 15_000),
     });
   },
+  /** Free air delivered per measured fill, and the advisory's judgement of the last fills. */
+  deliveries: (compressorId: number) =>
+    queryOptions({
+      queryKey: ["compressor", compressorId, "deliveries"],
+      queryFn: () => getJson<DeliveryHealthResponse>(`/api/compressors/${compressorId}/deliveries`),
+      refetchInterval: 60_000,
+    }),
   /** Comms, state-change and trip events of one compressor, newest first. */
   events: (compressorId: number) =>
     queryOptions({

@@ -13,6 +13,7 @@ import {
 import { localDateTime, monthLabel } from "@/shared/month";
 import { SAFETY_NOTICE } from "@/shared/safety";
 import { Definitions, HatchDefs, HeadlineGrid, PeriodLine, stateFills, stateLabels } from "./parts";
+import { DELIVERY_NOTE, DeliveryTable } from "./delivery-table";
 
 // The printable report: plain tables and SVG drawn on the server, sized for the narrower of A4 and Letter
 // (182 mm of text width at 14 mm margins), no navigation, no scripts needed to print.
@@ -334,6 +335,12 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
             ) : null}
           </div>
         ))}
+      </section>
+
+      <section className="break-inside-avoid space-y-1">
+        <h2 className="text-[12pt] font-semibold">Delivery health</h2>
+        <p className="text-[8pt]">{DELIVERY_NOTE}</p>
+        <DeliveryTable rows={report.delivery} compact />
       </section>
 
       {comparison ? (

@@ -7,6 +7,7 @@ import { reportHref, type MonthlyReport } from "@/shared/availability";
 import { monthLabel } from "@/shared/month";
 import { reportQueries } from "../queries/reports";
 import { CauseChart, ComparisonChart, DailyChart, PrioritySplitChart } from "./charts";
+import { DELIVERY_NOTE, DeliveryTable } from "./delivery-table";
 import { Definitions, HeadlineGrid, PeriodLine, reportSpan, scopeFilterOf } from "./parts";
 import {
   AvailabilityTable,
@@ -180,6 +181,10 @@ function ReportBody({ report, dim }: { report: MonthlyReport; dim: boolean }) {
         note="Trips (to their reset), communication losses and planned service that overlap the period, at full length. Times in each site's zone."
       >
         <OutagesTable report={report} />
+      </TableSection>
+
+      <TableSection id="delivery" title="Delivery health" note={DELIVERY_NOTE}>
+        <DeliveryTable rows={report.delivery} />
       </TableSection>
 
       <section aria-labelledby="alarm-load" className="space-y-3">

@@ -9,7 +9,7 @@ import { appendEvent } from "@/db/events";
 import { alarms, type AlarmRow } from "@/db/schema";
 import type { AlarmEvent } from "@/shared/alarm-eval";
 import { nextAlarmState, type AlarmState } from "@/shared/alarm-lifecycle";
-import type { Priority } from "@/shared/alarm-rules";
+import type { Limit, Priority } from "@/shared/alarm-rules";
 import {
   clearSentence,
   COMMS_ALARM_KEY,
@@ -96,10 +96,13 @@ function record(
 const announceAfresh = { ackAt: null, ackBy: null, ackComment: null, reAlarmedAt: null } as const;
 
 /** raise: a new row (active, unacknowledged) or the open row re-activated / held as its state says. */
+/** The part of a limit an alarm row keeps; a condition alarm has a threshold value and no signal. */
+type RaisedLimit = { value: number; signal?: Limit["signal"] } | null;
+
 export function applyRaise(
   db: Db,
   u: UnitRef,
-  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "limit" | "tripCode" | "chattering">,
+  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "tripCode" | "chattering"> & { limit: RaisedLimit },
   updatedAt: number,
 ): AlarmTransition {
   const row = findOpenAlarm(db, u.id, e.key);
@@ -173,7 +176,7 @@ export function applyRaise(
 export function applyClear(
   db: Db,
   u: UnitRef,
-  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "limit" | "tripCode">,
+  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "tripCode"> & { limit: RaisedLimit },
   updatedAt: number,
   reason: "returned" | "limit-removed" = "returned",
 ): AlarmTransition | null {

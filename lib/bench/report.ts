@@ -10,7 +10,10 @@ import { parseArgs } from "node:util";
 import { comparisonCsv, reportCsv } from "@/app/api/reports/csv";
 import { openDatabase } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
+import { deliveryMonthRows } from "@/db/delivery";
 import { alarmLoad, buildComparison, buildMonthlyReport, buildMonthlyReportMail } from "@/db/reports";
+import { type FillReading, FillTracker } from "@/shared/delivery-health";
+import { CompressorModel } from "@/simulator/model/compressor";
 import { HOUR_MS, monthsEndingWith, monthWindow, shiftMonth } from "@/shared/month";
 
 const { values: args } = parseArgs({
@@ -192,6 +195,7 @@ for (const c of compressors) {
   });
   tx();
 }
+const fillRows = generateFillDeliveries();
 const genMs = performance.now() - t0;
 sql.pragma("wal_checkpoint(TRUNCATE)");
 const sizeMb = fs.statSync(file).size / 1e6;
@@ -232,6 +236,8 @@ const floods = time("alarm load of 5 sites (sliding-window floods, busiest 10 mi
   fleet.result.periods.map((p) => alarmLoad(db, p.siteId, { from: p.from, to: p.to, days: [] }, p.positions, now)),
 );
 
+benchDeliveryHealth(fleet.median);
+
 const t = fleet.result.total;
 console.log(
   `\n  fleet ${MONTH}: period ${(t.split.periodS / 3600).toFixed(0)} compressor-h (per site: ${fleet.result.periods.map((p) => `${p.hours} h`).join(", ")}), availability ${(t.figures.availability! * 100).toFixed(2)} %` +
@@ -239,6 +245,7 @@ console.log(
 );
 console.log(
   `  MTBF on up time ${t.mtbfUpS ? (t.mtbfUpS / 3600).toFixed(1) : "—"} h; alarm floods ${floods.result.map((f) => `${f.floods} (${(f.floodShare * 100).toFixed(3)} % of the time), busiest 10 min ${f.peakTenMinute}`).join("; ")}`,
+  `  delivery health ${MONTH}: ${fillRows.toLocaleString("en")} measured fills stored, ${fleet.result.delivery.filter((r) => r.fills > 0).length} compressors with a median, ${fleet.result.delivery.filter((r) => r.low).length} below the advisory share`,
 );
 const target = 1000;
 const verdict = fleet.median < target && fleet.cold < target ? "within" : "OVER";
@@ -247,3 +254,64 @@ console.log(`  target: the fleet report under ${target} ms — ${verdict} (first
 db.$client.close();
 if (args.keep) console.log(`  kept ${file}`);
 else fs.rmSync(dir, { recursive: true, force: true });
+
+// ---- delivery health (its own section): measured fills for the report, and the cost of measuring them
+
+/** Every compressor's fills of the year as the ingester would have stored them: one per run cycle, a few low. */
+function generateFillDeliveries(): number {
+  const insert = sql.prepare(
+    `INSERT OR IGNORE INTO fill_deliveries (compressor_id, start_ts, end_ts, from_bar, to_bar, bank_c, free_air_l, delivery_lpm, rated_lpm, share)
+     VALUES (?, ?, ?, 290, 330, 18, ?, ?, 320, ?)`,
+  );
+  let n = 0;
+  for (const c of compressors) {
+    const r = rng(c.id * 104_729);
+    const cycle = (120 + (c.id % 7) * 10) * MIN;
+    const worn = c.id % 9 === 0 ? 0.7 : 1;
+    sql.transaction(() => {
+      for (let t = yearFrom; t < yearTo; t += cycle) {
+        if (r() < 0.3) continue; // a draw-off during the fill: not measured
+        const share = worn * (0.97 + 0.05 * r());
+        insert.run(c.id, t + 5 * MIN, t + 25 * MIN, Math.round(320 * share * 20), 320 * share, share);
+        n++;
+      }
+    })();
+  }
+  return n;
+}
+
+/** Times the report's delivery-health part and the ingester-side measurement of a compressor-month of fills. */
+function benchDeliveryHealth(fleetMedianMs: number): void {
+  const cms = buildMonthlyReport(db, req)!.delivery;
+  const windows = compressors.map((c) => {
+    const w = monthWindow(MONTH, c.zone, now);
+    return { compressorId: c.id, compressorName: `C${c.id}`, siteName: "", from: w.from, to: w.to };
+  });
+  const part = time("delivery health part of the fleet report (50)", () => deliveryMonthRows(db, windows));
+  console.log(`    = ${((100 * part.median) / Math.max(1e-9, fleetMedianMs)).toFixed(0)} % of the fleet report; ${cms.length} rows`);
+
+  // Measuring: a month of 5-s readings of one simulated 320 l/min unit with a 150 l bank, through the fill tracker.
+  const spec = { deviceId: "bench-dh", stages: 4, ratedDeliveryLpm: 320, ratedPressureBar: 350, stopPressureBar: 330, restartPressureBar: 290, bankVolumeL: 150, profile: "fire" as const, timeZone: "UTC", oilPump: true };
+  const from = monthWindow(MONTH, "UTC").from;
+  const model = new CompressorModel(spec, { seed: "bench", startMs: from });
+  const readings: FillReading[] = [];
+  for (let ts = from; ts < monthWindow(MONTH, "UTC").monthEnd; ts += 5_000) {
+    model.step(5);
+    const x = model.reading();
+    readings.push({ ts: model.timeMs, running: x.runState === "running" && x.motorOn, deliveryBar: x.deliveryBar, intakeC: x.intakeC });
+  }
+  let fills = 0;
+  const m = time(
+    "measuring fills: one compressor-month of 5-s readings",
+    () => {
+      const tracker = new FillTracker();
+      fills = 0;
+      for (const r of readings) if (tracker.add(r, spec)) fills++;
+      return fills;
+    },
+    3,
+  );
+  console.log(
+    `    ${readings.length.toLocaleString("en")} readings, ${fills} fills measured; × 50 compressors ≈ ${((m.median * 50) / 1000).toFixed(1)} s of ingester time spread over the month`,
+  );
+}

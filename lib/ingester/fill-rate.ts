@@ -13,6 +13,7 @@ export class FillRateWindow {
   private sy = 0;
   private sxx = 0;
   private sxy = 0;
+  private syy = 0;
 
   constructor(
     private readonly windowMs = 60_000,
@@ -25,7 +26,7 @@ export class FillRateWindow {
     this.t = [];
     this.p = [];
     this.head = 0;
-    this.n = this.sx = this.sy = this.sxx = this.sxy = 0;
+    this.n = this.sx = this.sy = this.sxx = this.sxy = this.syy = 0;
   }
 
   /** Re-bases the sums on the oldest sample, so they never grow large enough to lose precision. */
@@ -34,7 +35,7 @@ export class FillRateWindow {
     this.p = this.p.slice(this.head);
     this.head = 0;
     this.origin = this.t[0] ?? 0;
-    this.n = this.sx = this.sy = this.sxx = this.sxy = 0;
+    this.n = this.sx = this.sy = this.sxx = this.sxy = this.syy = 0;
     for (let i = 0; i < this.t.length; i++) this.include(this.t[i]!, this.p[i]!, 1);
   }
 
@@ -45,6 +46,7 @@ export class FillRateWindow {
     this.sy += sign * bar;
     this.sxx += sign * x * x;
     this.sxy += sign * x * bar;
+    this.syy += sign * bar * bar;
   }
 
   /** Adds a sample; a sample taken while not running ends the fill and clears the window. */
@@ -77,5 +79,24 @@ export class FillRateWindow {
     if (sxx <= 0) return null;
     const sxy = this.sxy - (this.sx * this.sy) / n;
     return (sxy / sxx) * 60;
+  }
+
+  /**
+   * The slope only once it can be trusted for a projection: the window spans at least `minSpanMs` of one run and the
+   * slope's standard error is at most `maxRelError` of it (a draw-off starting mid-window bends the line and fails this).
+   */
+  steadySlopeBarPerMin(minSpanMs: number, maxRelError: number): number | null {
+    const n = this.t.length - this.head;
+    if (n < Math.max(this.minPoints, 4)) return null;
+    if (this.t[this.t.length - 1]! - this.t[this.head]! < minSpanMs) return null;
+    const sxx = this.sxx - (this.sx * this.sx) / n;
+    if (sxx <= 0) return null;
+    const sxy = this.sxy - (this.sx * this.sy) / n;
+    const syy = this.syy - (this.sy * this.sy) / n;
+    const slope = sxy / sxx;
+    const residual = Math.max(0, syy - slope * sxy) / (n - 2);
+    const se = Math.sqrt(residual / sxx);
+    if (!(slope > 0) || se > maxRelError * slope) return null;
+    return slope * 60;
   }
 }

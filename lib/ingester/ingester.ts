@@ -12,6 +12,7 @@ import { INGEST_CLIENT_ID, INGEST_TOPIC, INGEST_USERNAME } from "@/lib/broker/in
 import { type ReadingInput, telemetryToReading } from "@/shared/telemetry";
 import { classifyMessage, DEFAULT_TIME_LIMITS, type RejectReason, rejectReasons, type TimeLimits } from "./classify";
 import { createAlarmEngine, type AlarmTransition } from "@/lib/alarms/engine";
+import { createDeliveryRecorder } from "@/lib/delivery/recorder";
 import { startCheckpointer } from "./checkpointer";
 import { createDeviceDirectory } from "./device-directory";
 import { liveAccessCheck } from "./live-access";
@@ -148,6 +149,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const rejectLog = createRateLimitedLog((line) => log(`reject ${line}`));
   const noticeLog = createRateLimitedLog(log);
   const alarmEngine = opts.alarms === false ? null : createAlarmEngine(db, { log: (m) => log(`alarms: ${m}`) });
+  // Fills measured for delivery health commit with the readings that end them.
+  const delivery = opts.alarms === false ? null : createDeliveryRecorder(db, { alarms: alarmEngine });
   // Readings and the alarm changes they cause commit together, so a restart neither loses nor repeats an alarm.
   const commit = db.$client.transaction(
     (rows: ReadingInput[], events: DeviceEventInput[], states: CompressorStateInput[]) => {
@@ -155,6 +158,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       stateWriter.upsertStates(states);
       stateWriter.insertEvents(events);
       const transitions: AlarmTransition[] = alarmEngine && rows.length > 0 ? alarmEngine.onReadings(rows, Date.now()) : [];
+      if (delivery && rows.length > 0) transitions.push(...delivery.onReadings(rows).transitions);
       return { ...res, transitions };
     },
   );

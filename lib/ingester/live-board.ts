@@ -1,8 +1,11 @@
 import type { CompressorStateInput } from "@/db/telemetry-state";
 import type { CompressorStateRow } from "@/db/schema";
 import type { LiveCompressor } from "@/shared/live";
+import { FILL_RATE_MAX_REL_ERROR, FILL_RATE_MIN_SPAN_MS, FILL_RATE_WINDOW_MS } from "@/shared/board";
 import { type DeviceEvent, type ReadingInput, runStateCode, runStateFromCode } from "@/shared/telemetry";
 import { FillRateWindow } from "./fill-rate";
+
+const newFillWindow = () => new FillRateWindow(FILL_RATE_WINDOW_MS);
 
 type Entry = { row: CompressorStateInput; fill: FillRateWindow; dirty: boolean };
 
@@ -70,13 +73,13 @@ export class LiveBoard {
   private readonly entries = new Map<number, Entry>();
 
   constructor(states: readonly CompressorStateRow[]) {
-    for (const s of states) this.entries.set(s.compressorId, { row: { ...s }, fill: new FillRateWindow(), dirty: false });
+    for (const s of states) this.entries.set(s.compressorId, { row: { ...s }, fill: newFillWindow(), dirty: false });
   }
 
   private entry(compressorId: number, now: number): Entry {
     let e = this.entries.get(compressorId);
     if (!e) {
-      e = { row: emptyRow(compressorId, now), fill: new FillRateWindow(), dirty: true };
+      e = { row: emptyRow(compressorId, now), fill: newFillWindow(), dirty: true };
       this.entries.set(compressorId, e);
     }
     return e;
@@ -114,7 +117,7 @@ export class LiveBoard {
       hourMeterH: r.hourMeterH,
       starts: r.starts,
       tripCode: r.tripCode,
-      fillRateBarPerMin: running ? e.fill.slopeBarPerMin() : null,
+      fillRateBarPerMin: running ? e.fill.steadySlopeBarPerMin(FILL_RATE_MIN_SPAN_MS, FILL_RATE_MAX_REL_ERROR) : null,
       updatedAt: receivedAt,
     });
     e.dirty = true;

@@ -1,6 +1,6 @@
 import type { RunState } from "../../shared/telemetry";
 import { tripCode, tripCodeLabel } from "../../shared/trip-codes";
-import * as air from "./air";
+import * as air from "../../shared/air";
 import { Outdoor } from "./ambient";
 import { planDay, type Cylinder, type DemandEvent, type FillBatch, type Profile } from "./demand";
 import type { FaultKind, FaultSpec } from "./faults";
@@ -91,7 +91,10 @@ const TAU = {
   oilPressure: 0.8,
 } as const;
 
-/** Polytropic exponent term (n−1)/n for finned, fan-cooled cylinders; rises as the fan air is lost. */
+/**
+ * Polytropic exponent term (n−1)/n for finned, fan-cooled cylinders (0.14, n ≈ 1.16; 0.17, n ≈ 1.20, without fan air),
+ * between isothermal (n = 1) and adiabatic (n = 1.4 for air): common practice, from memory, not a maker's figure.
+ */
 const POLY_M = 0.14;
 const POLY_M_HOT = 0.17;
 const INTERCOOLER_EFFECTIVENESS = 0.9;

@@ -2,6 +2,7 @@ import fs from "node:fs";
 import { randomBytes } from "node:crypto";
 import { expect, test, type Locator, type Page } from "@playwright/test";
 import { connectAsync, type IClientOptions, type MqttClient } from "mqtt";
+import { timeToStopMinutes } from "@/shared/board";
 import { topicFor } from "@/shared/telemetry";
 import { pressureDecimals, pressureFromBar, type PressureUnit } from "@/shared/units";
 import { e2e } from "./env";
@@ -104,11 +105,19 @@ test("the board shows each reading as it arrives, without a reload", async ({ pa
   await expect(tile.getByTestId("reading-age")).toHaveText(/^\d+ s ago$/);
   await expect(tile.getByTestId("to-stop-value")).toHaveText("—");
 
-  // A steady fill: 1 bar every 2 s (30 bar/min) for 10 s gives a time to stop of (stop − 305) / 30 minutes.
-  for (let i = 0; i <= 5; i++) await publishReading(client, d, 300 + i, { ts: start + 10_000 + i * 2_000 });
-  await expect(tile.getByTestId("delivery-value")).toHaveText(await shown(page, 305));
+  // A fill: 0.5 bar every 2 s (15 bar/min). Nothing is projected until the rate is steady over a minute of the run.
+  const t0 = start + 2_000;
+  for (let i = 0; i <= 10; i++) await publishReading(client, d, 340 + i / 2, { ts: t0 + i * 2_000 });
+  await expect(tile.getByTestId("delivery-value")).toHaveText(await shown(page, 345));
   await expect(tile.getByTestId("state-word")).toHaveText("Running");
-  await expect(tile.getByTestId("to-stop-value")).toHaveText(String(Math.round((d.stopPressureBar - 305) / 30)));
+  await expect(tile.getByTestId("to-stop-value")).toHaveText("—");
+  for (let i = 11; i <= 30; i++) await publishReading(client, d, 340 + i / 2, { ts: t0 + i * 2_000 });
+  await expect(tile.getByTestId("delivery-value")).toHaveText(await shown(page, 355));
+  // projected with real gas from the same shared function; a straight line would say (stop − 355) / 15
+  const live = { runState: "running" as const, deliveryBar: 355, fillRateBarPerMin: 15, intakeC: 17 };
+  const minutes = timeToStopMinutes(live, d.stopPressureBar, 200)!;
+  expect(minutes).toBeLessThan(0.9 * ((d.stopPressureBar - 355) / 15));
+  await expect(tile.getByTestId("to-stop-value")).toHaveText(String(Math.round(minutes)));
 
   expect(await page.evaluate(() => (window as unknown as { __sameDocument?: boolean }).__sameDocument)).toBe(true);
 });

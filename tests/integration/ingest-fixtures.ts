@@ -53,7 +53,7 @@ export function seedFleet(
     .run(now);
   const insert = sqlite.prepare(
     `INSERT INTO compressors (site_id, model_id, name, serial, device_id, device_secret_hash, stop_pressure_bar,
-       restart_pressure_bar, created_at, updated_at) VALUES (?, ?, ?, ?, ?, ?, 300, 270, ?, ?)`,
+       restart_pressure_bar, bank_volume_l, created_at, updated_at) VALUES (?, ?, ?, ?, ?, ?, 300, 270, 200, ?, ?)`,
   );
   const devices = new Map<string, FleetDevice>();
   for (const d of spec.devices) {

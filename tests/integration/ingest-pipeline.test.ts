@@ -1,11 +1,13 @@
 import type { MqttClient } from "mqtt";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import WebSocket from "ws";
+import { listFillDeliveries } from "@/db/delivery";
 import { getCompressorState, getIngesterStatus } from "@/db/telemetry-state";
 import { type BrokerHandle, startBroker } from "@/lib/broker/broker";
 import { type Ingester, startIngester } from "@/lib/ingester/ingester";
 import { createLiveToken } from "@/lib/live-token";
 import { type LiveMessage, liveMessageSchema } from "@/shared/live";
+import { freeAirLitres } from "@/shared/air";
 import { MAX_PAYLOAD_BYTES } from "@/shared/telemetry";
 import {
   connectDevice,
@@ -108,6 +110,40 @@ async function live(opts: { token?: string | null; origin?: string } = {}): Prom
 
 const readingsOf = (id: string) =>
   count(t.db, "SELECT count(*) AS n FROM readings WHERE compressor_id = ?", dev.get(id)!.compressorId);
+
+describe("delivery health", () => {
+  it("measures a fill from restart to stop pressure in the commit that stores it", async () => {
+    const d = dev.get("hp-9")!;
+    const c = await device("hp-9");
+    // 240 l/min of free air into the 200 l bank at 20 °C, 269 → 300 bar, read every 5 s; then 2 min of standby
+    const lpm = 240;
+    const barFor = (litres: number) => {
+      let lo = 0;
+      let hi = 400;
+      for (let i = 0; i < 50; i++) (freeAirLitres(200, (lo + hi) / 2, 20) < litres ? (lo = (lo + hi) / 2) : (hi = (lo + hi) / 2));
+      return Math.round(lo * 100) / 100;
+    };
+    const l0 = freeAirLitres(200, 269, 20);
+    const minutes = (freeAirLitres(200, 300, 20) - l0) / lpm;
+    const steps = Math.ceil((minutes * 60) / 5);
+    // runs first, and ends before the fill-rate test below sends newer readings from this unit
+    const start = Date.now() - (steps + 50) * 5_000;
+    let seq = 1000;
+    for (let i = 0; i <= steps; i++) {
+      const bar = Math.min(300, barFor(l0 + (lpm * i * 5) / 60));
+      await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 5_000, seq: seq++, deliveryBar: bar, intakeC: 20 })), { qos: 1 });
+    }
+    for (let i = steps + 1; i <= steps + 26; i++) {
+      const r = telemetry({ ts: start + i * 5_000, seq: seq++, runState: "standby", motorOn: false, deliveryBar: 300, intakeC: 20 });
+      await c.publishAsync(topicOf(d), JSON.stringify(r), { qos: 1 });
+    }
+    await waitFor(() => listFillDeliveries(t.db, d.compressorId, 0).length === 1, 5_000, "a measured fill");
+    const f = listFillDeliveries(t.db, d.compressorId, 0)[0]!;
+    expect(f.deliveryLpm).toBeCloseTo(lpm, 0);
+    expect(f.share).toBeCloseTo(lpm / 300, 2);
+    expect(f.toBar).toBe(300);
+  });
+});
 
 describe("publish → SQLite → WebSocket", () => {
   it("stores a reading, updates state and rollups, and pushes it to a live client", async () => {
@@ -306,20 +342,21 @@ describe("comms, events and fill rate", () => {
     );
   });
 
-  it("computes the fill rate from the last minute of delivery pressure while running", async () => {
+  it("computes the fill rate once a minute of the run gives a steady slope, and drops it when the unit stops", async () => {
     const d = dev.get("hp-9")!;
     const c = await device("hp-9");
-    const start = Date.now() - 40_000;
+    const start = Date.now() - 70_000;
     // 0.25 bar/s = 15 bar/min
-    for (let i = 0; i <= 30; i++) {
-      await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 1_000, seq: 100 + i, deliveryBar: 200 + i * 0.25 })), {
-        qos: 1,
-      });
-    }
-    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 30_000, 3_000, "last reading");
+    const send = async (i: number) =>
+      c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 1_000, seq: 100 + i, deliveryBar: 200 + i * 0.25 })), { qos: 1 });
+    for (let i = 0; i <= 30; i++) await send(i);
+    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 30_000, 3_000, "half a minute");
+    expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeNull();
+    for (let i = 31; i <= 60; i++) await send(i);
+    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 60_000, 3_000, "a minute");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeCloseTo(15, 6);
-    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + 31_000, seq: 131, runState: "standby", motorOn: false })), { qos: 1 });
-    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 31_000, 3_000, "standby reading");
+    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + 61_000, seq: 161, runState: "standby", motorOn: false })), { qos: 1 });
+    await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 61_000, 3_000, "standby reading");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeNull();
   });
 });

@@ -28,6 +28,7 @@ const tile = (id: number, l: LiveCompressor | null, liveStamp: number): BoardCom
   name: `C${id}`,
   siteId: 1,
   modelName: "M",
+  bankVolumeL: 200,
   stages: 3,
   ratedPressureBar: 330,
   stopPressureBar: 300,

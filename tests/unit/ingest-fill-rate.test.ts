@@ -41,4 +41,16 @@ describe("FillRateWindow (least-squares slope of delivery pressure)", () => {
     w.add(10_000, 110, false);
     expect(w.slopeBarPerMin()).toBeNull();
   });
+
+  it("reports a steady slope only over a long enough span with a small standard error", () => {
+    const w = new FillRateWindow(120_000);
+    // 6 bar/min, every 5 s: not yet after 30 s, then exactly 6 once a minute is covered
+    for (let i = 0; i <= 6; i++) w.add(i * 5_000, 300 + i * 0.5, true);
+    expect(w.steadySlopeBarPerMin(60_000, 0.1)).toBeNull();
+    for (let i = 7; i <= 12; i++) w.add(i * 5_000, 300 + i * 0.5, true);
+    expect(w.steadySlopeBarPerMin(60_000, 0.1)).toBeCloseTo(6, 9);
+    // a cylinder fill starts drawing off: the rise stops, the line bends, and the slope is no longer trusted
+    for (let i = 13; i <= 24; i++) w.add(i * 5_000, 306 + (i % 2) * 0.3, true);
+    expect(w.steadySlopeBarPerMin(60_000, 0.1)).toBeNull();
+  });
 });

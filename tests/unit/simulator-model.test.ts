@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { ATMOSPHERE_BAR } from "@/simulator/model/air";
-import { LEMMON_R, lemmonDensity, lemmonZ } from "@/simulator/model/air-lemmon";
+import { ATMOSPHERE_BAR, FREE_AIR_REFERENCE } from "@/shared/air";
+import { LEMMON_R, lemmonDensity, lemmonZ } from "@/shared/air-lemmon";
 import { CompressorModel, type CompressorSpec, type ModelEvent, type ModelReading } from "@/simulator/model/compressor";
 import { planDay } from "@/simulator/model/demand";
 import { localTime } from "@/simulator/model/local-time";
@@ -102,10 +102,11 @@ describe("bank pressure control", () => {
     const full = evs.find((e) => e.text === "Stop pressure reached")!;
     const seconds = (full.ts - running.ts) / 1000;
 
-    // By hand, with Z from Lemmon et al. (2000): n = V·ρ(p, T); free air at 1.01325 bar and 20 °C.
+    // By hand, with Z from Lemmon et al. (2000): n = V·ρ(p, T); free air at 1 bar(a) and 20 °C.
     const tK = 293.15;
     const bankMol = (pGauge: number) => lemmonDensity((pGauge + ATMOSPHERE_BAR) * 1e5, tK) * (spec.bankVolumeL / 1000);
-    const molPerFreeLitre = (ATMOSPHERE_BAR * 1e5 * 1e-3) / (lemmonZ(ATMOSPHERE_BAR * 1e5, tK) * LEMMON_R * tK);
+    const pRef = FREE_AIR_REFERENCE.pBarAbs * 1e5;
+    const molPerFreeLitre = (pRef * 1e-3) / (lemmonZ(pRef, tK) * LEMMON_R * tK);
     const freeLitres = (bankMol(spec.stopPressureBar) - bankMol(spec.restartPressureBar - 0.01)) / molPerFreeLitre;
     const expected = (freeLitres / spec.ratedDeliveryLpm) * 60;
     expect(expected).toBeGreaterThan(600);

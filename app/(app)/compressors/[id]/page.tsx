@@ -3,6 +3,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CompressorLive } from "@/components/compressor/compressor-live";
+import { DeliveryHealth } from "@/components/compressor/delivery-health";
 import { DeviceEvents } from "@/components/compressor/device-events";
 import { TrendChart } from "@/components/compressor/trend-chart";
 import { liveQueries } from "@/components/queries/live";
@@ -11,6 +12,7 @@ import { makeQueryClient } from "@/components/query-client";
 import { loadLiveState } from "@/db/board";
 import { getDb } from "@/db/client";
 import { getCompressor } from "@/db/compressors";
+import { deliveryHealth } from "@/db/delivery";
 import { listDeviceEvents, readTrend } from "@/db/trends";
 import { inScope, pageUser } from "@/lib/auth/current-user";
 import { compressorIdSchema, type CompressorDetail } from "@/shared/board";
@@ -45,6 +47,7 @@ export default async function CompressorPage({ params }: Props) {
   const detail: CompressorDetail = { at: Date.now(), compressor, ...loadLiveState(db, compressor.id) };
   await Promise.all([
     client.prefetchQuery({ ...liveQueries.compressor(compressor.id), queryFn: () => detail }),
+    client.prefetchQuery({ ...trendQueries.deliveries(compressor.id), queryFn: () => deliveryHealth(db, compressor.id) }),
     client.prefetchQuery({ ...trendQueries.events(compressor.id), queryFn: () => listDeviceEvents(db, compressor.id, { limit: 100 }) }),
     client.prefetchQuery({
       ...trendQueries.trend(compressor.id, DEFAULT_SIGNAL, DEFAULT_SPAN),
@@ -65,6 +68,7 @@ export default async function CompressorPage({ params }: Props) {
           initialSignal={DEFAULT_SIGNAL}
           initialSpan={DEFAULT_SPAN}
         />
+        <DeliveryHealth compressorId={compressor.id} timeZone={compressor.timeZone} />
         <DeviceEvents compressorId={compressor.id} timeZone={compressor.timeZone} />
       </div>
     </HydrationBoundary>

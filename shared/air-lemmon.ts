@@ -1,6 +1,6 @@
 // Reference equation of state for dry air as a pseudo-pure fluid:
 // Lemmon, Jacobsen, Penoncello, Friend (2000), J. Phys. Chem. Ref. Data 29:331, residual Helmholtz energy (Table 12 there).
-// Slow (exp and pow per term, Newton for density); the simulator uses the compact fit in air.ts, checked against this.
+// Slow (exp and pow per term, Newton for density); everything else uses the compact fit in air.ts, checked against this.
 
 export const LEMMON_R = 8.31451; // J/(mol·K), the value used by the equation
 export const LEMMON_MOLAR_MASS = 28.9586e-3; // kg/mol

@@ -1,4 +1,6 @@
-// Compressibility of dry air for the simulator: a 20-term fit, Z − 1 = Σ a_ij δ^i τ^j (i = 1..5, j = 0..3),
+// The one equation of state for air in Airkeep: the simulator, the board (time to stop pressure), delivery health and
+// the reports all compute compressibility and free air here and nowhere else.
+// Compressibility of dry air: a 20-term fit, Z − 1 = Σ a_ij δ^i τ^j (i = 1..5, j = 0..3),
 // δ = ρ/ρr and τ = Tr/T with the reducing constants of Lemmon et al. (2000). Least-squares fit to that equation
 // (air-lemmon.ts) over 233–393 K and 0.5–520 bar; largest deviation 0.02 % in Z. Density form keeps pressure explicit.
 
@@ -74,8 +76,16 @@ export function airZ(pBarAbs: number, tK: number): number {
 
 export const celsiusToKelvin = (c: number) => c + 273.15;
 
-/** Free air is referred to 1.01325 bar absolute and 20 °C: the intake conditions the rated delivery assumes. */
-export const FREE_AIR_REFERENCE = { pBarAbs: ATMOSPHERE_BAR, tK: 293.15 } as const;
+/**
+ * "Free air" in Airkeep is dry air at 1 bar absolute and 20 °C: the standard inlet conditions of ISO 1217 (displacement
+ * compressors, acceptance tests; Annex E of the 1996 edition; the values from memory), to which makers refer the free
+ * air delivery they rate. Rated delivery and every figure Airkeep derives from it use this one reference, so they compare
+ * like with like. Gauge pressures still become absolute with the standard atmosphere (ATMOSPHERE_BAR).
+ */
+export const FREE_AIR_REFERENCE = { pBarAbs: 1, tC: 20, tK: 293.15 } as const;
+/** Printed wherever free air or l/min appears. */
+export const FREE_AIR_BASIS = "free air at 1 bar(a), 20 °C, dry (ISO 1217 inlet reference)";
+export const FREE_AIR_BASIS_SHORT = "free air, 1 bar(a) 20 °C";
 /** Moles in one litre of free air. */
 export const MOL_PER_FREE_LITRE = airDensityMol(FREE_AIR_REFERENCE.pBarAbs * 1e5, FREE_AIR_REFERENCE.tK) / 1000;
 
@@ -92,6 +102,31 @@ export function vesselPressureBar(waterVolumeL: number, moles: number, tC: numbe
 /** Litres of free air a vessel holds at gauge pressure p (bar) and T (°C). */
 export function freeAirLitres(waterVolumeL: number, pBarGauge: number, tC: number): number {
   return molesInVessel(waterVolumeL, pBarGauge, tC) / MOL_PER_FREE_LITRE;
+}
+
+/** Free air delivered per minute (l/min) that raised a vessel from (p0, t0) to (p1, t1) in `minutes`. */
+export function deliveredFreeAirLpm(
+  waterVolumeL: number,
+  from: { pBarGauge: number; tC: number },
+  to: { pBarGauge: number; tC: number },
+  minutes: number,
+): number {
+  return (freeAirLitres(waterVolumeL, to.pBarGauge, to.tC) - freeAirLitres(waterVolumeL, from.pBarGauge, from.tC)) / minutes;
+}
+
+/**
+ * Minutes until a vessel filling at `rateBarPerMin` (the slope of pressure measured around `atBarGauge`) reaches `stopBarGauge`,
+ * when the compressor delivers a constant amount of air per minute: the slope becomes a molar rate with the local
+ * dρ/dp of the real gas, and the time is the moles still to go over that rate. The vessel volume cancels out.
+ */
+export function realGasMinutesToPressure(atBarGauge: number, rateBarPerMin: number, stopBarGauge: number, tC: number): number {
+  if (!(rateBarPerMin > 0)) return Infinity;
+  if (atBarGauge >= stopBarGauge) return 0;
+  const tK = celsiusToKelvin(tC);
+  const rho = (pGauge: number) => airDensityMol(Math.max(0, pGauge + ATMOSPHERE_BAR) * 1e5, tK);
+  const h = 0.5;
+  const dRhoDp = (rho(atBarGauge + h) - rho(atBarGauge - h)) / (2 * h);
+  return (rho(stopBarGauge) - rho(atBarGauge)) / (dRhoDp * rateBarPerMin);
 }
 
 /** Minutes a compressor delivering `deliveryLpm` of free air takes to raise a vessel from one gauge pressure to another. */
