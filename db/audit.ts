@@ -14,6 +14,8 @@ export type AuditEntry = {
   compressorId?: number | null;
   ip?: string;
   details?: Record<string, unknown>;
+  /** Event-log kind when the action's prefix does not say it (e.g. "service" for attachments of a service entry). */
+  eventKind?: string;
 };
 
 const auditSentences: Record<string, (e: AuditEntry) => string> = {
@@ -40,7 +42,7 @@ function describe(e: AuditEntry): string {
 export function writeAudit(db: Db, entry: AuditEntry, ts = Date.now()): void {
   appendEvent(db, {
     ts,
-    kind: entry.action.startsWith("auth.") ? "auth" : entry.action.startsWith("threshold") ? "threshold" : "config",
+    kind: entry.eventKind ?? (entry.action.startsWith("auth.") ? "auth" : entry.action.startsWith("threshold") ? "threshold" : "config"),
     action: entry.action,
     text: describe(entry),
     siteId: entry.siteId ?? null,
