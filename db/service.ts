@@ -428,3 +428,13 @@ export function listServiceWindows(db: Db, q: { siteIds: readonly number[] | nul
     .limit(q.limit)
     .all();
 }
+
+/**
+ * Entries recorded without an hour meter take the one the compressor reported at that time, once telemetry for it
+ * has arrived (a late gateway, the demo's backfill). One statement; entries with no telemetry before them stay empty.
+ */
+export function fillHourMetersFromTelemetry(db: Db): number {
+  const at = `(SELECT h.hour_meter_h FROM readings_1h h WHERE h.compressor_id = service_log.compressor_id AND h.bucket_ts <= service_log.done_at
+                 AND h.bucket_ts > service_log.done_at - 7 * 86400000 AND h.hour_meter_h IS NOT NULL ORDER BY h.bucket_ts DESC LIMIT 1)`;
+  return db.$client.prepare(`UPDATE service_log SET hour_meter_h = ${at} WHERE hour_meter_h IS NULL AND ${at} IS NOT NULL`).run().changes;
+}

@@ -17,7 +17,7 @@ export type DueInput = {
   everyMonths: number | null;
   /** When it was last done (or the counting started), ms UTC. */
   lastAt: number;
-  /** Hour meter when it was last done; null when not known (counts as 0). */
+  /** Hour meter when it was last done; null when not known (then only the calendar can be judged). */
   lastHours: number | null;
   /** Hour meter now; null when the compressor never reported one. */
   hourMeterH: number | null;
@@ -84,9 +84,9 @@ export function computeDue(i: DueInput): DueResult {
   let dueHours: number | null = null;
   let hoursLeft: number | null = null;
   let hoursForecast: number | null = null;
-  if (i.everyHours != null && i.everyHours > 0) {
-    dueHours = (i.lastHours ?? 0) + i.everyHours;
-    const meter = i.hourMeterH ?? i.lastHours ?? 0;
+  if (i.everyHours != null && i.everyHours > 0 && i.lastHours !== null) {
+    dueHours = i.lastHours + i.everyHours;
+    const meter = i.hourMeterH ?? i.lastHours;
     hoursLeft = dueHours - meter;
     if (hoursLeft <= 0) status = "overdue";
     else if (hoursLeft <= i.leadHours) status = "due";
