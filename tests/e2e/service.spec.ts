@@ -31,6 +31,8 @@ const serviceAlarm = (compressorId: number) =>
   withDb((db) => db.select({ state: alarms.state, active: alarms.active, priority: alarms.priority }).from(alarms).where(and(eq(alarms.compressorId, compressorId), eq(alarms.key, KEY))).all());
 
 test.describe.serial("service", () => {
+  // Signing in (bcrypt) and the first server renders are slow on a busy 2-core machine.
+  test.setTimeout(120_000);
   let attachmentId = 0;
 
   test("a technician logs an overdue task with a photo; it leaves the overdue list and its alarm clears", async ({ page }) => {
@@ -40,6 +42,7 @@ test.describe.serial("service", () => {
 
     await signIn(page, "technician");
     await page.goto("/service");
+    await expect(page.getByTestId("due-table")).toBeVisible({ timeout: 30_000 });
     const row = page.locator('[data-testid="due-row"][data-compressor="MB-1 Main"][data-code="safety-valve-test"]');
     await expect(row).toHaveAttribute("data-status", "overdue");
     // Overdue first.
