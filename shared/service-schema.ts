@@ -171,4 +171,6 @@ export type ServiceOverviewDto = {
   log: ServiceLogDto[];
   windows: ServiceWindowDto[];
   lead: ServiceLead;
+  /** For editing plans: each model's tasks, and each compressor's effective tasks (switched-off ones included). */
+  plans: { models: { id: number; name: string; tasks: ServiceTaskDto[] }[]; compressors: Record<string, ServiceTaskDto[]> };
 };

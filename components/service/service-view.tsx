@@ -13,6 +13,7 @@ import { statusRank } from "@/shared/service-due";
 import { dueText, intervalText, num, StatusChip } from "./due-format";
 import { LogForm, type LogPrefill } from "./log-form";
 import { ServiceLogList } from "./log-list";
+import { PlanEditor } from "./plan-editor";
 import { WindowsPanel } from "./windows-panel";
 
 type SortKey = "status" | "forecast" | "compressor" | "task" | "site";
@@ -41,11 +42,13 @@ export function ServiceView({
   canLog,
   canReset,
   canCorrect,
+  canPlan,
 }: {
   initialFilter: ServiceFilter;
   canLog: boolean;
   canReset: boolean;
   canCorrect: boolean;
+  canPlan: boolean;
 }) {
   const router = useRouter();
   const pathname = usePathname();
@@ -149,6 +152,8 @@ export function ServiceView({
       <ServiceLogList data={data} q={filter.q ?? ""} onSearch={(q) => setFilter({ ...filter, q: q || undefined })} canCorrect={canCorrect} onChanged={refresh} />
 
       <WindowsPanel data={data} canAdd={canLog} onAdded={refresh} />
+
+      {canPlan && <PlanEditor data={data} onChanged={refresh} />}
     </section>
   );
 }

@@ -1,5 +1,6 @@
 import type { Db } from "@/db/client";
-import { effectivePlans, getServiceLead, listServiceLog, listServiceWindows, serviceDueList } from "@/db/service";
+import { effectivePlans, getServiceLead, listServiceLog, listServiceWindows, modelPlan, serviceDueList } from "@/db/service";
+import { listModels } from "@/db/compressors";
 import { listSites } from "@/db/sites";
 import { compressors } from "@/db/schema";
 import type { ServiceOverviewDto } from "@/shared/service-schema";
@@ -32,5 +33,12 @@ export function serviceOverview(
     log: listServiceLog(db, { siteIds, site: f.site, compressor: f.compressor, q: f.q, limit: f.limit ?? 50 }),
     windows: listServiceWindows(db, { siteIds, compressor: f.compressor, since: now - 30 * DAY, limit: 50 }).filter(keep),
     lead: getServiceLead(db),
+    plans: {
+      // A model's plan reaches every site: shown only to people who see every site.
+      models: siteIds === null ? listModels(db).map((m) => ({ id: m.id, name: m.name, tasks: modelPlan(db, m.id) })) : [],
+      compressors: Object.fromEntries(
+        [...effectivePlans(db, { includeDisabled: true, compressorIds: units.map((u) => u.id) })].map(([id, tasks]) => [String(id), tasks]),
+      ),
+    },
   };
 }

@@ -29,6 +29,7 @@ export default async function ServicePage({ searchParams }: Props) {
         canLog={can(user.role, "service.log")}
         canReset={can(user.role, "service.reset")}
         canCorrect={can(user.role, "service.correct")}
+        canPlan={can(user.role, "service.plan")}
       />
     </HydrationBoundary>
   );
