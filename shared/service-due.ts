@@ -1,4 +1,4 @@
-import { DAY_MS, localParts, startOfLocalDay } from "./month";
+import { DAY_MS, localParts, startOfLocalDay, utcOffsetMs } from "./month";
 
 // When a service task falls due, from the hour meter and from the calendar in the site's time zone, whichever first.
 //
@@ -51,9 +51,27 @@ function daysInMonth(year: number, month: number): number {
   return new Date(Date.UTC(year, month, 0)).getUTCDate();
 }
 
+// Intl look-ups cost tens of microseconds each on a busy machine. A UTC day whose start and end have the same offset
+// (every day but the few with a daylight-saving change) has that offset throughout, so it is remembered per day.
+const dayOffsets = new Map<string, number | null>();
+function localDateOf(ts: number, timeZone: string): { year: number; month: number; day: number } {
+  const day = Math.floor(ts / DAY_MS);
+  const key = `${timeZone}|${day}`;
+  let off = dayOffsets.get(key);
+  if (off === undefined) {
+    if (dayOffsets.size > 50_000) dayOffsets.clear();
+    const a = utcOffsetMs(day * DAY_MS, timeZone);
+    off = a === utcOffsetMs((day + 1) * DAY_MS - 1000, timeZone) ? a : null;
+    dayOffsets.set(key, off);
+  }
+  if (off === null) return localParts(ts, timeZone);
+  const d = new Date(ts + off);
+  return { year: d.getUTCFullYear(), month: d.getUTCMonth() + 1, day: d.getUTCDate() };
+}
+
 /** The local date `months` after the local date of `ts` (day clamped to the month's length). */
 export function addLocalMonths(ts: number, months: number, timeZone: string): { year: number; month: number; day: number } {
-  const p = localParts(ts, timeZone);
+  const p = localDateOf(ts, timeZone);
   const index = p.year * 12 + (p.month - 1) + months;
   const year = Math.floor(index / 12);
   const month = (index % 12) + 1;
