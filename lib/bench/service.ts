@@ -75,7 +75,7 @@ function timeIt(label: string, runs: number, fn: () => unknown): number {
   }
   times.sort((a, b) => a - b);
   const median = times[Math.floor(times.length / 2)]!;
-  console.log(`  ${label.padEnd(58)} first ${times.length ? times[0]!.toFixed(1) : "-"} … median ${median.toFixed(1)} ms, worst ${times[times.length - 1]!.toFixed(1)} ms`);
+  console.log(`  ${label.padEnd(58)} best ${times[0]!.toFixed(1)} … median ${median.toFixed(1)} ms, worst ${times[times.length - 1]!.toFixed(1)} ms`);
   return median;
 }
 
