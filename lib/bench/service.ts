@@ -185,5 +185,5 @@ web.kill("SIGTERM");
 await fake.close();
 db.$client.close();
 fs.rmSync(dir, { recursive: true, force: true });
-console.log("\nMeasured on a shared 2-core machine: figures are noisy when other work runs.");
+console.log(`\nMeasured on a ${os.cpus().length}-core machine, load average ${os.loadavg().map((x) => x.toFixed(1)).join(" / ")}: figures are noisy when other work runs.`);
 process.exit(0);
