@@ -20,6 +20,15 @@ type DemoTask = { code: string; name: string; everyHours: number | null; everyMo
 
 const task = (code: string, name: string, everyHours: number | null, everyMonths: number | null): DemoTask => ({ code, name, everyHours, everyMonths });
 
+const largeFourStage: DemoTask[] = [
+  task("oil-change", "Oil change", 1000, 12),
+  task("intake-filter", "Intake filter", 500, 6),
+  task("valve-inspection", "Valve inspection", 2000, null),
+  task("condensate-drain", "Condensate drain check", null, 1),
+  task("safety-valve-test", "Safety-valve test", null, 12),
+  task("vessel-inspection", "Pressure-vessel inspection", null, 24),
+];
+
 /** Common practice, not a maker's schedule (see above). */
 export const demoServicePlans: Record<string, DemoTask[]> = {
   "Skua 80": [
@@ -37,22 +46,8 @@ export const demoServicePlans: Record<string, DemoTask[]> = {
     task("safety-valve-test", "Safety-valve test", null, 12),
     task("vessel-inspection", "Pressure-vessel inspection", null, 24),
   ],
-  "Gannet 320": [
-    task("oil-change", "Oil change", 1000, 12),
-    task("intake-filter", "Intake filter", 500, 6),
-    task("valve-inspection", "Valve inspection", 2000, null),
-    task("condensate-drain", "Condensate drain check", null, 1),
-    task("safety-valve-test", "Safety-valve test", null, 12),
-    task("vessel-inspection", "Pressure-vessel inspection", null, 24),
-  ],
-  "Fulmar 450": [
-    task("oil-change", "Oil change", 1000, 12),
-    task("intake-filter", "Intake filter", 500, 6),
-    task("valve-inspection", "Valve inspection", 2000, null),
-    task("condensate-drain", "Condensate drain check", null, 1),
-    task("safety-valve-test", "Safety-valve test", null, 12),
-    task("vessel-inspection", "Pressure-vessel inspection", null, 24),
-  ],
+  "Gannet 320": largeFourStage,
+  "Fulmar 450": largeFourStage,
 };
 
 const DAY = 86_400_000;

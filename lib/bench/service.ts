@@ -11,6 +11,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { Readable } from "node:stream";
+import seedrandom from "seedrandom";
 import { openDatabase } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { computeDueList, loadDueInputs, serviceDueList } from "@/db/service";
@@ -21,24 +22,13 @@ const SITES = ["Europe/London", "Europe/Oslo", "Europe/Malta", "America/New_York
 const COMPRESSORS = 500;
 const TASKS = 10;
 
-function rng(seed: number) {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
-
 const dir = fs.mkdtempSync(path.join(os.tmpdir(), "airkeep-service-bench-"));
 const file = path.join(dir, "airkeep.db");
 const db = openDatabase(file);
 runMigrations(db);
 const sql = db.$client;
 const now = Date.UTC(2026, 10, 20, 12, 0, 0);
-const rand = rng(12);
+const rand = seedrandom.alea("12");
 
 sql.transaction(() => {
   sql.prepare("INSERT INTO compressor_models (id, name, stages, rated_delivery_lpm, rated_pressure_bar, created_at) VALUES (1, 'Bench', 4, 320, 350, 0)").run();

@@ -64,52 +64,45 @@ const immediate = <T>(db: Db, fn: () => T): T => db.transaction(fn, { behavior: 
 
 export type LogResult = { id: number; duplicate: boolean; compressorId: number };
 
+type Entry = Pick<ServiceLogInput, "submissionId" | "doneAt" | "parts" | "notes"> & { hourMeterH: number | null; tasks: { code: string; name: string }[] };
+
+/** Inside the caller's write transaction: the entry and its audit row, or the entry a repeated submit already made. */
+function writeEntry(db: Db, actor: ServiceActor, c: CompressorDto, e: Entry, action: "service.log" | "service.reset", details: Record<string, unknown>, now: number): LogResult {
+  // A repeated submit (double click, a retry after a lost answer) finds the entry the first one made.
+  const existing = findBySubmission(db, e.submissionId);
+  if (existing) {
+    if (existing.compressorId !== c.id || existing.performedBy !== actor.id) throw new ActionFailure(409, "This form was already used for another entry. Reload and try again.");
+    return { id: existing.id, duplicate: true, compressorId: c.id };
+  }
+  const row = insertServiceLog(db, { compressorId: c.id, siteId: c.siteId, ...e, performedBy: actor.id, performedByName: actor.name }, now);
+  writeAudit(
+    db,
+    {
+      actorUserId: actor.id,
+      actor: actor.email,
+      action,
+      targetType: "service_log",
+      targetId: row.id,
+      siteId: c.siteId,
+      compressorId: c.id,
+      ip: actor.ip,
+      eventKind: "service",
+      details: { compressorName: c.name, taskNames: e.tasks.map((t) => t.name).join(", "), tasks: e.tasks.map((t) => t.code), hourMeterH: e.hourMeterH, ...details },
+    },
+    now,
+  );
+  return { id: row.id, duplicate: false, compressorId: c.id };
+}
+
 export function recordServiceLog(db: Db, actor: ServiceActor, input: ServiceLogInput, now = Date.now()): LogResult {
   const c = compressorFor(db, actor, input.compressorId);
   checkTime(input.doneAt, now);
   const tasks = planTasks(db, c, input.tasks);
   const hourMeterH = resolveHours(db, c, input.hourMeterH, input.doneAt);
-  const result = immediate(db, () => {
-    // A repeated submit (double click, a retry after a lost answer) finds the entry the first one made.
-    const existing = findBySubmission(db, input.submissionId);
-    if (existing) {
-      if (existing.compressorId !== c.id || existing.performedBy !== actor.id) throw new ActionFailure(409, "This form was already used for another entry. Reload and try again.");
-      return { id: existing.id, duplicate: true, compressorId: c.id };
-    }
-    const row = insertServiceLog(
-      db,
-      {
-        compressorId: c.id,
-        siteId: c.siteId,
-        doneAt: input.doneAt,
-        hourMeterH,
-        tasks,
-        parts: input.parts,
-        notes: input.notes,
-        performedBy: actor.id,
-        performedByName: actor.name,
-        submissionId: input.submissionId,
-      },
-      now,
-    );
-    writeAudit(
-      db,
-      {
-        actorUserId: actor.id,
-        actor: actor.email,
-        action: "service.log",
-        targetType: "service_log",
-        targetId: row.id,
-        siteId: c.siteId,
-        compressorId: c.id,
-        ip: actor.ip,
-        eventKind: "service",
-        details: { compressorName: c.name, taskNames: tasks.map((t) => t.name).join(", "), tasks: tasks.map((t) => t.code), hourMeterH, doneAt: input.doneAt, parts: input.parts, notes: input.notes },
-      },
-      now,
-    );
-    return { id: row.id, duplicate: false, compressorId: c.id };
-  });
+  const { submissionId, doneAt, parts, notes } = input;
+  const result = immediate(db, () =>
+    writeEntry(db, actor, c, { submissionId, doneAt, hourMeterH, tasks, parts, notes }, "service.log", { doneAt, parts, notes }, now),
+  );
   syncServiceAlarms(db, now, c.id);
   return result;
 }
@@ -124,43 +117,8 @@ export function resetServiceInterval(
   const c = compressorFor(db, actor, input.compressorId);
   const tasks = planTasks(db, c, [input.code]);
   const hourMeterH = resolveHours(db, c, null, now);
-  const result = immediate(db, () => {
-    const existing = findBySubmission(db, input.submissionId);
-    if (existing) return { id: existing.id, duplicate: true, compressorId: c.id };
-    const row = insertServiceLog(
-      db,
-      {
-        compressorId: c.id,
-        siteId: c.siteId,
-        doneAt: now,
-        hourMeterH,
-        tasks,
-        parts: "",
-        notes: `Interval reset: ${input.reason}`,
-        performedBy: actor.id,
-        performedByName: actor.name,
-        submissionId: input.submissionId,
-      },
-      now,
-    );
-    writeAudit(
-      db,
-      {
-        actorUserId: actor.id,
-        actor: actor.email,
-        action: "service.reset",
-        targetType: "service_log",
-        targetId: row.id,
-        siteId: c.siteId,
-        compressorId: c.id,
-        ip: actor.ip,
-        eventKind: "service",
-        details: { compressorName: c.name, taskNames: tasks[0]!.name, tasks: [input.code], hourMeterH, reason: input.reason },
-      },
-      now,
-    );
-    return { id: row.id, duplicate: false, compressorId: c.id };
-  });
+  const entry = { submissionId: input.submissionId, doneAt: now, hourMeterH, tasks, parts: "", notes: `Interval reset: ${input.reason}` };
+  const result = immediate(db, () => writeEntry(db, actor, c, entry, "service.reset", { reason: input.reason }, now));
   syncServiceAlarms(db, now, c.id);
   return result;
 }
