@@ -2,6 +2,7 @@
  * The words for alarms, in one place: screens, e-mails and the event log all build their titles and sentences here.
  * Pure; values arrive in stored units (bar, °C) and are written in them (the event log is stored once, for everyone).
  */
+import { conditionTitle } from "./alarm-conditions";
 import { alarmSignalSchema, signalInfo, type AlarmSignal, type Priority } from "./alarm-rules";
 import { stateLabels, type AlarmState } from "./alarm-lifecycle";
 import type { RunState } from "./telemetry";
@@ -10,19 +11,6 @@ import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
 export const TRIP_ALARM_KEY = "trip";
 export const COMMS_ALARM_KEY = "comms";
 
-/**
- * Condition alarms: raised and cleared by a computation over stored data rather than by a reading against a limit
- * (AlarmEngine.onCondition). Each has a key beginning "condition:" and its words here.
- */
-export const conditionAlarms: Record<string, { title: string; raise: (value: number | null, limit: number | null) => string; clear: (value: number | null) => string }> = {
-  "condition:delivery-low": {
-    title: "Delivery below rated",
-    raise: (v, l) =>
-      `median delivery of the last fills ${v == null ? "" : `${Math.round(v * 100)} % `}of rated${l == null ? "" : `, below ${Math.round(l * 100)} %`} (worn valves, a leaking separator drain or a slipping belt are usual causes)`,
-    clear: (v) => `median delivery back to ${v == null ? "" : `${Math.round(v * 100)} % of `}rated`,
-  },
-};
-export const isConditionKey = (key: string) => key.startsWith("condition:");
 
 export type AlarmTextInput = {
   key: string;
@@ -47,8 +35,8 @@ const lowerFirst = (s: string) => s.charAt(0).toLowerCase() + s.slice(1);
 export function alarmTitle(a: AlarmTextInput): string {
   if (a.key === TRIP_ALARM_KEY) return a.tripCode != null ? `Trip ${a.tripCode}: ${tripCodeLabel(a.tripCode)}` : "Compressor tripped";
   if (a.key === COMMS_ALARM_KEY) return "Communication lost";
-  const c = conditionAlarms[a.key];
-  if (c) return c.title;
+  const condition = conditionTitle(a.key);
+  if (condition) return condition;
   const s = parseLimitKey(a.key);
   if (!s) return a.key;
   return `${signalInfo[s.signal].label} ${s.direction}`;
@@ -86,6 +74,8 @@ export type AlarmSentenceInput = AlarmTextInput & {
   chattering?: boolean;
   /** The state the alarm was left in, when it is not the plain annunciated one. */
   state?: AlarmState;
+  /** Condition alarms: what the raising or clearing code says about it ("due in 32 h or by 14 Mar 2027"). */
+  detail?: string | null;
 };
 
 function heldSuffix(state: AlarmState | undefined): string {
@@ -102,8 +92,8 @@ export function raiseSentence(a: AlarmSentenceInput): string {
     return `${who}: tripped${code}${why}${heldSuffix(a.state)}`;
   }
   if (a.key === COMMS_ALARM_KEY) return `${who}: communication lost${heldSuffix(a.state)}`;
-  const c = conditionAlarms[a.key];
-  if (c) return `${who}: ${c.raise(a.value ?? null, a.limitValue ?? null)}${heldSuffix(a.state)}`;
+  const condition = conditionTitle(a.key);
+  if (condition) return `${who}: ${lowerFirst(condition)} (${a.priority})${a.detail ? `: ${a.detail}` : ""}${heldSuffix(a.state)}`;
   const s = parseLimitKey(a.key);
   if (!s) return `${who}: ${a.key} alarm raised${heldSuffix(a.state)}`;
   const label = lowerFirst(signalInfo[s.signal].label);
@@ -122,8 +112,8 @@ export function clearSentence(a: AlarmSentenceInput & { reason?: "returned" | "l
     return `${who}: trip reset${code}`;
   }
   if (a.key === COMMS_ALARM_KEY) return `${who}: communication restored`;
-  const c = conditionAlarms[a.key];
-  if (c) return `${who}: ${c.clear(a.value ?? null)}`;
+  const condition = conditionTitle(a.key);
+  if (condition) return `${who}: ${lowerFirst(condition)} (${a.priority}) cleared${a.detail ? `: ${a.detail}` : ""}`;
   const s = parseLimitKey(a.key);
   if (!s) return `${who}: ${a.key} alarm cleared`;
   const label = lowerFirst(signalInfo[s.signal].label);

@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { realGasMinutesToPressure } from "./air";
+import type { ServiceBadge } from "./service-schema";
 import type { CompressorDto } from "./compressor-schema";
 import { STALE_AFTER_MS, type LiveCompressor } from "./live";
 import type { RunState } from "./telemetry";
@@ -320,6 +321,8 @@ export type BoardCompressor = {
   restartPressureBar: number;
   bankVolumeL: number;
   inService: boolean;
+  /** Service tasks due or overdue (null: none, or no plan). */
+  service: ServiceBadge | null;
   live: LiveCompressor | null;
   /** Server time at which `live` was known to be current; the newer of two versions wins. */
   liveStamp: number;

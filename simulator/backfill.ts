@@ -80,7 +80,7 @@ export function backfill(opts: BackfillOptions): BackfillResult {
   // History goes through the same alarm engine as live readings, so the demo has alarms and an event log.
   const alarmEngine = opts.alarms === false ? null : createAlarmEngine(opts.db);
   // ... and the same delivery-health measurement of each fill.
-  const delivery = createDeliveryRecorder(opts.db, { alarms: alarmEngine, now: () => 0 });
+  const delivery = createDeliveryRecorder(opts.db, { alarms: alarmEngine !== null, now: () => 0 });
 
   const compressorIdOf = sqlite.prepare("SELECT id FROM compressors WHERE device_id = ?");
   const bounds = sqlite.prepare(

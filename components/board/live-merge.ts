@@ -51,7 +51,10 @@ function sameConfig(a: BoardData["compressors"][number], b: BoardData["compresso
     a.ratedPressureBar === b.ratedPressureBar &&
     a.stopPressureBar === b.stopPressureBar &&
     a.restartPressureBar === b.restartPressureBar &&
-    a.inService === b.inService
+    a.inService === b.inService &&
+    a.service?.status === b.service?.status &&
+    a.service?.overdue === b.service?.overdue &&
+    a.service?.due === b.service?.due
   );
 }
 

@@ -25,7 +25,8 @@ import {
 } from "@/shared/alarm-eval";
 import { alarmStates, dueForReAlarm } from "@/shared/alarm-lifecycle";
 import { defaultAlarmSettings, limitKey, type AlarmSettings, type AlarmSignal, type Limit } from "@/shared/alarm-rules";
-import { COMMS_ALARM_KEY, isConditionKey } from "@/shared/alarm-text";
+import { isConditionKey } from "@/shared/alarm-conditions";
+import { COMMS_ALARM_KEY } from "@/shared/alarm-text";
 import { runStateCode, runStates, type ReadingInput, type RunState } from "@/shared/telemetry";
 import { createSnapshotStore, parseSnapshot, type EngineSnapshot } from "./snapshot";
 import {
@@ -77,11 +78,6 @@ export type AlarmEngine = {
   onCommsLost(compressorId: number, ts: number, receivedAt?: number): AlarmTransition[];
   /** Messages again: clears the "comms" alarm. */
   onCommsRestored(compressorId: number, ts: number, receivedAt?: number): AlarmTransition[];
-  /**
-   * A condition computed over stored data (key "condition:…", words in shared/alarm-text.ts): raises it when `active`
-   * and it is not open, clears it when not active and it is. Usable by any source that is not a reading against a limit.
-   */
-  onCondition(compressorId: number, c: ConditionInput, receivedAt?: number): AlarmTransition[];
   /** Call about once a second: shelving expiry, re-alarm, and a reload when thresholds or compressors changed. */
   tick(now?: number): AlarmTransition[];
   /** Rebuilds every compressor's state from SQLite (after a failed outer transaction). */
@@ -89,16 +85,6 @@ export type AlarmEngine = {
   /** The limits in use for a compressor (tests, diagnostics). */
   limitsOf(compressorId: number): readonly Limit[];
   stats(): AlarmEngineStats;
-};
-
-export type ConditionInput = {
-  key: string;
-  priority: "critical" | "warning" | "advisory";
-  active: boolean;
-  ts: number;
-  value: number | null;
-  /** The threshold the value was judged against, stored with the alarm. */
-  limitValue: number | null;
 };
 
 type Unit = UnitRef & {
@@ -261,6 +247,7 @@ export function createAlarmEngine(db: Db, opts: AlarmEngineOptions = {}): AlarmE
       }
     }
     for (const key of activeKeys) {
+      // Condition alarms (lib/alarms/conditions.ts) are raised and cleared by their own callers, never by limits.
       if (key === TRIP_KEY || key === COMMS_ALARM_KEY || isConditionKey(key)) continue;
       state.limits[key] ??= { active: true, since: null, raises: [] };
     }
@@ -516,23 +503,6 @@ export function createAlarmEngine(db: Db, opts: AlarmEngineOptions = {}): AlarmE
     return out;
   }
 
-  // ——— conditions over stored data ———
-
-  function onCondition(compressorId: number, c: ConditionInput, receivedAt = clock()): AlarmTransition[] {
-    if (!isConditionKey(c.key)) throw new Error(`not a condition key: ${c.key}`);
-    const u = unitFor(compressorId);
-    if (!u) return [];
-    const open = findOpenAlarm(db, compressorId, c.key);
-    if (c.active === Boolean(open?.active)) return [];
-    const limit = c.limitValue === null ? null : { value: c.limitValue };
-    const e = { key: c.key, priority: c.priority, ts: c.ts, value: c.value, limit };
-    return write(() => {
-      if (c.active) return [applyRaise(db, u, e, receivedAt)];
-      const t = applyClear(db, u, e, receivedAt);
-      return t ? [t] : [];
-    });
-  }
-
   // ——— time-driven work ———
 
   function refreshMeta(now: number): void {
@@ -613,7 +583,6 @@ export function createAlarmEngine(db: Db, opts: AlarmEngineOptions = {}): AlarmE
     onReadings,
     onCommsLost,
     onCommsRestored,
-    onCondition,
     tick,
     resync,
     limitsOf: (id) => unitFor(id)?.limits ?? [],

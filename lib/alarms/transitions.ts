@@ -102,7 +102,7 @@ type RaisedLimit = { value: number; signal?: Limit["signal"] } | null;
 export function applyRaise(
   db: Db,
   u: UnitRef,
-  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "tripCode" | "chattering"> & { limit: RaisedLimit },
+  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "tripCode" | "chattering"> & { limit: RaisedLimit; detail?: string | null },
   updatedAt: number,
 ): AlarmTransition {
   const row = findOpenAlarm(db, u.id, e.key);
@@ -163,8 +163,10 @@ export function applyRaise(
     tripCode,
     chattering,
     state: to,
+    detail: e.detail,
   });
   return record(db, u, { id, key: e.key, priority: e.priority }, "alarm.raise", from, to, true, e.ts, text, eventKindFor(e.key), {
+    ...(e.detail ? { detail: e.detail } : {}),
     value: e.value,
     limit: limitValue,
     ...(isTrip ? { tripCode } : {}),
@@ -176,7 +178,7 @@ export function applyRaise(
 export function applyClear(
   db: Db,
   u: UnitRef,
-  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "tripCode"> & { limit: RaisedLimit },
+  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "tripCode"> & { limit: RaisedLimit; detail?: string | null },
   updatedAt: number,
   reason: "returned" | "limit-removed" = "returned",
 ): AlarmTransition | null {
@@ -193,8 +195,10 @@ export function applyClear(
     limitValue: e.limit?.value ?? row.limitValue,
     tripCode: row.tripCode,
     reason,
+    detail: e.detail,
   });
   return record(db, u, row, "alarm.clear", from, to, false, e.ts, text, eventKindFor(row.key), {
+    ...(e.detail ? { detail: e.detail } : {}),
     value: e.value,
     ...(reason !== "returned" ? { reason } : {}),
   });

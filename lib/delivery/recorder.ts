@@ -1,10 +1,15 @@
 import type { Db } from "@/db/client";
 import { deliveryAdvisorySettings, deliveryUnits, type DeliveryUnit, insertFillDelivery, lastFillShares } from "@/db/delivery";
-import type { AlarmEngine, AlarmTransition } from "@/lib/alarms/engine";
+import { clearConditionAlarm, raiseConditionAlarm } from "@/lib/alarms/conditions";
+import type { AlarmTransition } from "@/lib/alarms/transitions";
+import { conditionKey } from "@/shared/alarm-conditions";
 import { deliveryAdvisory, type DeliveryAdvisorySettings, FillTracker } from "@/shared/delivery-health";
 import { runStateCode, type ReadingInput } from "@/shared/telemetry";
 
-export const DELIVERY_ALARM_KEY = "condition:delivery-low";
+const FAMILY = "delivery-low";
+const SUBJECT = "median";
+export const DELIVERY_ALARM_KEY = conditionKey(FAMILY, SUBJECT);
+const pct = (share: number) => `${Math.round(share * 100)} %`;
 
 export type DeliveryRecorder = {
   /**
@@ -19,7 +24,7 @@ export type DeliveryRecorder = {
  * Delivery health as readings arrive: one FillTracker per compressor (shared/delivery-health.ts), the units' banks and
  * setpoints re-read at most once a minute. Used by the ingester's commit and by the simulator's backfill.
  */
-export function createDeliveryRecorder(db: Db, opts: { alarms: AlarmEngine | null; refreshMs?: number; now?: () => number }): DeliveryRecorder {
+export function createDeliveryRecorder(db: Db, opts: { alarms: boolean; refreshMs?: number; now?: () => number }): DeliveryRecorder {
   const clock = opts.now ?? Date.now;
   const refreshMs = opts.refreshMs ?? 60_000;
   const trackers = new Map<number, FillTracker>();
@@ -47,25 +52,29 @@ export function createDeliveryRecorder(db: Db, opts: { alarms: AlarmEngine | nul
         if (!units.has(r.compressorId)) refresh(true);
         const unit = units.get(r.compressorId);
         if (!unit || !(unit.bankVolumeL > 0)) continue;
-        let t = trackers.get(r.compressorId);
-        if (!t) trackers.set(r.compressorId, (t = new FillTracker()));
+        let tracker = trackers.get(r.compressorId);
+        if (!tracker) trackers.set(r.compressorId, (tracker = new FillTracker()));
         st.readings++;
-        const f = t.add({ ts: r.ts, running: r.runState === running && r.motorOn === 1, deliveryBar: r.deliveryBar, intakeC: r.intakeC }, unit);
+        const f = tracker.add({ ts: r.ts, running: r.runState === running && r.motorOn === 1, deliveryBar: r.deliveryBar, intakeC: r.intakeC }, unit);
         if (!f || !insertFillDelivery(db, r.compressorId, f)) continue;
         fills++;
         if (!opts.alarms) continue;
         const judged = deliveryAdvisory(lastFillShares(db, r.compressorId, settings.fills), settings);
         if (judged.median === null) continue;
-        transitions.push(
-          ...opts.alarms.onCondition(r.compressorId, {
-            key: DELIVERY_ALARM_KEY,
-            priority: "advisory",
-            active: judged.low,
-            ts: f.endTs,
-            value: judged.median,
-            limitValue: settings.minShare,
-          }),
-        );
+        const c = { compressorId: r.compressorId, family: FAMILY, subject: SUBJECT, ts: f.endTs, value: judged.median };
+        const t = judged.low
+          ? raiseConditionAlarm(
+              db,
+              {
+                ...c,
+                priority: "advisory",
+                limitValue: settings.minShare,
+                detail: `median delivery of the last fills ${pct(judged.median)} of rated, below ${pct(settings.minShare)} (worn valves, a leaking separator drain or a slipping belt are usual causes)`,
+              },
+              clock(),
+            )
+          : clearConditionAlarm(db, { ...c, detail: `median delivery back to ${pct(judged.median)} of rated` }, clock());
+        if (t) transitions.push(t);
       }
       st.fills += fills;
       return { fills, transitions };

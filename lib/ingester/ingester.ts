@@ -150,7 +150,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const noticeLog = createRateLimitedLog(log);
   const alarmEngine = opts.alarms === false ? null : createAlarmEngine(db, { log: (m) => log(`alarms: ${m}`) });
   // Fills measured for delivery health commit with the readings that end them.
-  const delivery = opts.alarms === false ? null : createDeliveryRecorder(db, { alarms: alarmEngine });
+  const delivery = opts.alarms === false ? null : createDeliveryRecorder(db, { alarms: alarmEngine !== null });
   // Readings and the alarm changes they cause commit together, so a restart neither loses nor repeats an alarm.
   const commit = db.$client.transaction(
     (rows: ReadingInput[], events: DeviceEventInput[], states: CompressorStateInput[]) => {

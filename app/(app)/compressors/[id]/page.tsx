@@ -14,7 +14,10 @@ import { getDb } from "@/db/client";
 import { getCompressor } from "@/db/compressors";
 import { deliveryHealth } from "@/db/delivery";
 import { listDeviceEvents, readTrend } from "@/db/trends";
-import { inScope, pageUser } from "@/lib/auth/current-user";
+import { inScope, pageUser, type CurrentUser } from "@/lib/auth/current-user";
+import { CompressorService } from "@/components/service/compressor-service";
+import { listServiceLog, serviceDueList } from "@/db/service";
+import { can } from "@/shared/roles";
 import { compressorIdSchema, type CompressorDetail } from "@/shared/board";
 import type { CompressorDto } from "@/shared/compressor-schema";
 
@@ -22,18 +25,18 @@ export const dynamic = "force-dynamic";
 
 type Props = { params: Promise<{ id: string }> };
 
-async function viewable(params: Props["params"]): Promise<CompressorDto> {
+async function viewable(params: Props["params"]): Promise<{ compressor: CompressorDto; user: CurrentUser }> {
   const user = await pageUser("compressors.view");
   const id = compressorIdSchema.safeParse((await params).id);
   if (!id.success) notFound();
   const compressor = getCompressor(getDb(), id.data);
   // Outside the person's sites reads exactly like a compressor that does not exist.
   if (!compressor || !inScope(user, compressor.siteId)) notFound();
-  return compressor;
+  return { compressor, user };
 }
 
 export async function generateMetadata({ params }: Props): Promise<Metadata> {
-  const compressor = await viewable(params);
+  const { compressor } = await viewable(params);
   return { title: `${compressor.name} · ${compressor.siteName}` };
 }
 
@@ -41,8 +44,12 @@ const DEFAULT_SIGNAL = "deliveryBar" as const;
 const DEFAULT_SPAN = "6h" as const;
 
 export default async function CompressorPage({ params }: Props) {
-  const compressor = await viewable(params);
+  const { compressor, user } = await viewable(params);
   const db = getDb();
+  const now = Date.now();
+  const mayReadLog = can(user.role, "service.view");
+  const serviceDue = serviceDueList(db, now, user.siteIds, compressor.id);
+  const serviceLog = mayReadLog ? listServiceLog(db, { siteIds: user.siteIds, compressor: compressor.id, limit: 5 }) : null;
   const client = makeQueryClient();
   const detail: CompressorDetail = { at: Date.now(), compressor, ...loadLiveState(db, compressor.id) };
   await Promise.all([
@@ -69,6 +76,7 @@ export default async function CompressorPage({ params }: Props) {
           initialSpan={DEFAULT_SPAN}
         />
         <DeliveryHealth compressorId={compressor.id} timeZone={compressor.timeZone} />
+        <CompressorService due={serviceDue} log={serviceLog} linkToService={mayReadLog} compressorId={compressor.id} />
         <DeviceEvents compressorId={compressor.id} timeZone={compressor.timeZone} />
       </div>
     </HydrationBoundary>
