@@ -19,6 +19,7 @@ export const ROLLUP_SIGNALS = [
   ["oilBar", "oil_bar"],
   ["purifierC", "purifier_c"],
   ["intakeC", "intake_c"],
+  ["purifierBar", "purifier_bar"],
 ] as const satisfies readonly (readonly [keyof ReadingInput, string])[];
 
 const SIGNAL_COUNT = ROLLUP_SIGNALS.length;
@@ -44,6 +45,7 @@ const RAW_COLUMNS = [
   "hour_meter_h",
   "starts",
   "trip_code",
+  "purifier_bar",
 ] as const;
 
 export type InsertResult = { inserted: number; duplicates: number };
@@ -280,6 +282,7 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
           r.hourMeterH,
           r.starts,
           r.tripCode,
+          r.purifierBar ?? null,
         );
         if (res.changes === 0) {
           duplicates++;
