@@ -6,6 +6,7 @@ import { alarmSignalSchema, signalInfo, type AlarmSignal, type Priority } from "
 import { stateLabels, type AlarmState } from "./alarm-lifecycle";
 import type { RunState } from "./telemetry";
 import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
+import { airAlarmTitles, isAirAlarmKind } from "./air-quality-alarms";
 
 export const TRIP_ALARM_KEY = "trip";
 export const COMMS_ALARM_KEY = "comms";
@@ -33,6 +34,7 @@ const lowerFirst = (s: string) => s.charAt(0).toLowerCase() + s.slice(1);
 export function alarmTitle(a: AlarmTextInput): string {
   if (a.key === TRIP_ALARM_KEY) return a.tripCode != null ? `Trip ${a.tripCode}: ${tripCodeLabel(a.tripCode)}` : "Compressor tripped";
   if (a.key === COMMS_ALARM_KEY) return "Communication lost";
+  if (isAirAlarmKind(a.key)) return airAlarmTitles[a.key];
   const s = parseLimitKey(a.key);
   if (!s) return a.key;
   return `${signalInfo[s.signal].label} ${s.direction}`;
@@ -86,6 +88,7 @@ export function raiseSentence(a: AlarmSentenceInput): string {
     return `${who}: tripped${code}${why}${heldSuffix(a.state)}`;
   }
   if (a.key === COMMS_ALARM_KEY) return `${who}: communication lost${heldSuffix(a.state)}`;
+  if (isAirAlarmKind(a.key)) return `${who}: ${lowerFirst(airAlarmTitles[a.key])}${heldSuffix(a.state)}`;
   const s = parseLimitKey(a.key);
   if (!s) return `${who}: ${a.key} alarm raised${heldSuffix(a.state)}`;
   const label = lowerFirst(signalInfo[s.signal].label);
@@ -104,6 +107,7 @@ export function clearSentence(a: AlarmSentenceInput & { reason?: "returned" | "l
     return `${who}: trip reset${code}`;
   }
   if (a.key === COMMS_ALARM_KEY) return `${who}: communication restored`;
+  if (isAirAlarmKind(a.key)) return `${who}: ${lowerFirst(airAlarmTitles[a.key])}: cleared`;
   const s = parseLimitKey(a.key);
   if (!s) return `${who}: ${a.key} alarm cleared`;
   const label = lowerFirst(signalInfo[s.signal].label);

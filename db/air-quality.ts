@@ -1,0 +1,295 @@
+import type { Statement } from "better-sqlite3";
+import { and, desc, eq, inArray } from "drizzle-orm";
+import type { AirTestDto, CartridgeChangeDto, PurifierRatingInput, SiteAirSettingsInput } from "@/shared/air-quality-schema";
+import type { AirStandard, AirTestVerdict } from "@/shared/air-standards";
+import {
+  addBucket,
+  DEFAULT_ADVISORY_PCT,
+  emptyUsage,
+  HOUR_MS,
+  type CartridgeRating,
+  type PurifierSpec,
+  type Usage,
+} from "@/shared/purifier";
+import type { Db } from "./client";
+import { airTests, cartridgeChanges, compressorModels, compressors, purifierRatings, purifierUsage, siteAirSettings, sites, users } from "./schema";
+
+export const DEFAULT_INTERVAL_DAYS = 91;
+export const DEFAULT_STANDARD: AirStandard = "en12021";
+
+export type SiteAirSettings = { standard: AirStandard; intervalDays: number };
+
+export function getSiteAirSettings(db: Db, siteId: number): SiteAirSettings {
+  const r = db.select().from(siteAirSettings).where(eq(siteAirSettings.siteId, siteId)).get();
+  return r ? { standard: r.standard, intervalDays: r.intervalDays } : { standard: DEFAULT_STANDARD, intervalDays: DEFAULT_INTERVAL_DAYS };
+}
+
+export function allSiteAirSettings(db: Db): Map<number, SiteAirSettings> {
+  const out = new Map<number, SiteAirSettings>();
+  for (const r of db.select().from(siteAirSettings).all()) out.set(r.siteId, { standard: r.standard, intervalDays: r.intervalDays });
+  return out;
+}
+
+export function saveSiteAirSettings(db: Db, input: SiteAirSettingsInput, userId: number, now = Date.now()): void {
+  db.insert(siteAirSettings)
+    .values({ ...input, updatedAt: now, updatedBy: userId })
+    .onConflictDoUpdate({ target: siteAirSettings.siteId, set: { standard: input.standard, intervalDays: input.intervalDays, updatedAt: now, updatedBy: userId } })
+    .run();
+}
+
+export type UnitInfo = {
+  id: number;
+  name: string;
+  siteId: number;
+  siteName: string;
+  timeZone: string;
+  modelId: number;
+  ratedDeliveryLpm: number;
+  backPressureBar: number;
+  inService: boolean;
+  createdAt: number;
+};
+
+const unitColumns = {
+  id: compressors.id,
+  name: compressors.name,
+  siteId: compressors.siteId,
+  siteName: sites.name,
+  timeZone: sites.timeZone,
+  modelId: compressors.modelId,
+  ratedDeliveryLpm: compressorModels.ratedDeliveryLpm,
+  backPressureBar: compressorModels.backPressureBar,
+  inService: compressors.inService,
+  createdAt: compressors.createdAt,
+};
+
+export function airUnits(db: Db, siteIds: number[] | null): UnitInfo[] {
+  const q = db
+    .select(unitColumns)
+    .from(compressors)
+    .innerJoin(sites, eq(sites.id, compressors.siteId))
+    .innerJoin(compressorModels, eq(compressorModels.id, compressors.modelId));
+  return (siteIds === null ? q : q.where(inArray(compressors.siteId, siteIds.length ? siteIds : [-1]))).orderBy(sites.name, compressors.name).all();
+}
+
+export function airUnit(db: Db, compressorId: number): UnitInfo | null {
+  return (
+    db
+      .select(unitColumns)
+      .from(compressors)
+      .innerJoin(sites, eq(sites.id, compressors.siteId))
+      .innerJoin(compressorModels, eq(compressorModels.id, compressors.modelId))
+      .where(eq(compressors.id, compressorId))
+      .get() ?? null
+  );
+}
+
+export type EffectiveRating = { rating: CartridgeRating; advisoryPct: number; source: "model" | "compressor" };
+
+/** The compressor's own rating if it has one, else its model's; null when neither is rated. */
+export function effectiveRatings(db: Db): (unit: Pick<UnitInfo, "id" | "modelId">) => EffectiveRating | null {
+  const rows = db.select().from(purifierRatings).all();
+  const byKey = new Map(rows.map((r) => [`${r.scopeType}:${r.scopeId}`, r]));
+  return (u) => {
+    const c = byKey.get(`compressor:${u.id}`);
+    const r = c ?? byKey.get(`model:${u.modelId}`);
+    if (!r) return null;
+    return { rating: { kind: r.kind, value: r.value, refBar: r.refBar, refC: r.refC }, advisoryPct: r.advisoryPct, source: c ? "compressor" : "model" };
+  };
+}
+
+export function saveRating(db: Db, input: PurifierRatingInput, userId: number, now = Date.now()): void {
+  db.transaction(
+    (tx) => {
+      const key = and(eq(purifierRatings.scopeType, input.scopeType), eq(purifierRatings.scopeId, input.scopeId));
+      if (input.rating === null) tx.delete(purifierRatings).where(key).run();
+      else
+        tx.insert(purifierRatings)
+          .values({ scopeType: input.scopeType, scopeId: input.scopeId, ...input.rating, updatedAt: now, updatedBy: userId })
+          .onConflictDoUpdate({ target: [purifierRatings.scopeType, purifierRatings.scopeId], set: { ...input.rating, updatedAt: now, updatedBy: userId } })
+          .run();
+      if (input.scopeType === "model" && input.backPressureBar !== undefined)
+        tx.update(compressorModels).set({ backPressureBar: input.backPressureBar }).where(eq(compressorModels.id, input.scopeId)).run();
+    },
+    { behavior: "immediate" },
+  );
+}
+
+export function specFor(unit: Pick<UnitInfo, "ratedDeliveryLpm" | "backPressureBar">, r: EffectiveRating): PurifierSpec {
+  return { ratedDeliveryLpm: unit.ratedDeliveryLpm, backPressureBar: unit.backPressureBar, rating: r.rating };
+}
+
+const specKey = (s: PurifierSpec) => JSON.stringify([s.ratedDeliveryLpm, s.backPressureBar]);
+
+// ---- Cartridge use, summed incrementally over the 1-hour rollups ----
+
+type BucketRow = [runS: number, pcSum: number, pcN: number, pbSum: number, pbN: number, dSum: number, dN: number];
+
+const statements = new WeakMap<object, { buckets: Statement; lastChange: Statement }>();
+function prepared(db: Db) {
+  let s = statements.get(db.$client);
+  if (!s) {
+    s = {
+      buckets: db.$client
+        .prepare(
+          `SELECT run_s, purifier_c_sum, purifier_c_n, purifier_bar_sum, purifier_bar_n, delivery_bar_sum, delivery_bar_n
+             FROM readings_1h WHERE compressor_id = ? AND bucket_ts >= ? AND bucket_ts < ? AND run_s > 0`,
+        )
+        .raw(),
+      lastChange: db.$client.prepare(`SELECT changed_at FROM cartridge_changes WHERE compressor_id = ? ORDER BY changed_at DESC LIMIT 1`).pluck(),
+    };
+    statements.set(db.$client, s);
+  }
+  return s;
+}
+
+/** Adds the 1-hour buckets in [from, to) to `u`. */
+export function addHourBuckets(db: Db, u: Usage, compressorId: number, spec: PurifierSpec, from: number, to: number): void {
+  const rows = prepared(db).buckets.all(compressorId, from, to) as BucketRow[];
+  const b = { runS: 0, purifierC: null as number | null, purifierBar: null as number | null, deliveryBar: null as number | null };
+  for (const r of rows) {
+    b.runS = r[0];
+    b.purifierC = r[2] > 0 ? r[1] / r[2] : null;
+    b.purifierBar = r[4] > 0 ? r[3] / r[4] : null;
+    b.deliveryBar = r[6] > 0 ? r[5] / r[6] : null;
+    addBucket(u, spec, b);
+  }
+}
+
+export function lastChangeAt(db: Db, compressorId: number): number | null {
+  return (prepared(db).lastChange.get(compressorId) as number | undefined) ?? null;
+}
+
+/**
+ * Water taken up since the last change (from the start of that hour: an hour of over-count at most, on the safe side).
+ * Complete hours are summed once and kept in purifier_usage; the hour under way is added live and not kept.
+ */
+export function cartridgeUsage(db: Db, unit: UnitInfo, spec: PurifierSpec, now: number): { usage: Usage; sinceTs: number } {
+  const since = lastChangeAt(db, unit.id) ?? 0;
+  const startHour = Math.floor(since / HOUR_MS) * HOUR_MS;
+  const doneBefore = Math.floor(now / HOUR_MS) * HOUR_MS;
+  const key = specKey(spec);
+  const usage = db.transaction(
+    (tx) => {
+      const row = tx.select().from(purifierUsage).where(eq(purifierUsage.compressorId, unit.id)).get();
+      const fresh = !row || row.sinceTs !== since || row.specKey !== key;
+      const u: Usage = fresh ? emptyUsage() : { waterG: row.waterG, runS: row.runS, freeAirM3: row.freeAirM3 };
+      const from = fresh ? startHour : row.throughTs;
+      if (from < doneBefore) {
+        addHourBuckets(tx, u, unit.id, spec, from, doneBefore);
+        const values = { sinceTs: since, throughTs: doneBefore, waterG: u.waterG, runS: u.runS, freeAirM3: u.freeAirM3, specKey: key, updatedAt: now };
+        tx.insert(purifierUsage)
+          .values({ compressorId: unit.id, ...values })
+          .onConflictDoUpdate({ target: purifierUsage.compressorId, set: values })
+          .run();
+      }
+      return u;
+    },
+    { behavior: "immediate" },
+  );
+  addHourBuckets(db, usage, unit.id, spec, Math.max(doneBefore, startHour), doneBefore + HOUR_MS);
+  return { usage, sinceTs: since };
+}
+
+/** The recent window's duty, for predictions. */
+export function recentUsage(db: Db, unitId: number, spec: PurifierSpec, from: number, to: number): Usage {
+  const u = emptyUsage();
+  addHourBuckets(db, u, unitId, spec, Math.floor(from / HOUR_MS) * HOUR_MS, to);
+  return u;
+}
+
+// ---- Records ----
+
+export type NewAirTest = typeof airTests.$inferInsert;
+
+export function insertAirTest(db: Db, row: NewAirTest): number {
+  return db.insert(airTests).values(row).returning({ id: airTests.id }).get().id;
+}
+
+export function latestAirTests(db: Db): Map<number, { id: number; sampledAt: number; passed: boolean }> {
+  const rows = db.$client
+    .prepare(
+      `SELECT t.compressor_id AS compressorId, t.id, t.sampled_at AS sampledAt, t.passed FROM air_tests t
+        WHERE t.id = (SELECT id FROM air_tests x WHERE x.compressor_id = t.compressor_id ORDER BY sampled_at DESC, id DESC LIMIT 1)`,
+    )
+    .all() as { compressorId: number; id: number; sampledAt: number; passed: number }[];
+  return new Map(rows.map((r) => [r.compressorId, { id: r.id, sampledAt: r.sampledAt, passed: r.passed === 1 }]));
+}
+
+export type AttachmentNamer = (id: number | null) => { id: number; name: string } | null;
+const noAttachment: AttachmentNamer = () => null;
+
+export function listAirTests(db: Db, f: { compressorId?: number; siteIds: number[] | null; from?: number; to?: number; limit?: number }, name: AttachmentNamer = noAttachment): AirTestDto[] {
+  const where = [];
+  if (f.compressorId) where.push(eq(airTests.compressorId, f.compressorId));
+  if (f.siteIds) where.push(inArray(airTests.siteId, f.siteIds.length ? f.siteIds : [-1]));
+  const rows = db
+    .select({ t: airTests, compressorName: compressors.name, createdBy: users.name })
+    .from(airTests)
+    .innerJoin(compressors, eq(compressors.id, airTests.compressorId))
+    .leftJoin(users, eq(users.id, airTests.createdBy))
+    .where(where.length ? and(...where) : undefined)
+    .orderBy(desc(airTests.sampledAt), desc(airTests.id))
+    .limit(f.limit ?? 50)
+    .all();
+  return rows.map(({ t, compressorName, createdBy }) => ({
+    id: t.id,
+    compressorId: t.compressorId,
+    compressorName,
+    siteId: t.siteId,
+    sampledAt: t.sampledAt,
+    samplePoint: t.samplePoint,
+    fillBar: t.fillBar,
+    laboratory: t.laboratory,
+    certificateNo: t.certificateNo,
+    standard: t.standard,
+    passed: t.passed,
+    verdict: t.verdict as AirTestVerdict,
+    certificate: name(t.certificateAttachmentId),
+    note: t.note,
+    createdBy: createdBy ?? "",
+    createdAt: t.createdAt,
+  }));
+}
+
+export function insertCartridgeChange(db: Db, row: typeof cartridgeChanges.$inferInsert): number {
+  const id = db.insert(cartridgeChanges).values(row).returning({ id: cartridgeChanges.id }).get().id;
+  db.delete(purifierUsage).where(eq(purifierUsage.compressorId, row.compressorId)).run();
+  return id;
+}
+
+export function listCartridgeChanges(db: Db, compressorId: number, limit = 20, name: AttachmentNamer = noAttachment): CartridgeChangeDto[] {
+  return db
+    .select({ c: cartridgeChanges, createdBy: users.name })
+    .from(cartridgeChanges)
+    .leftJoin(users, eq(users.id, cartridgeChanges.createdBy))
+    .where(eq(cartridgeChanges.compressorId, compressorId))
+    .orderBy(desc(cartridgeChanges.changedAt))
+    .limit(limit)
+    .all()
+    .map(({ c, createdBy }) => ({
+      id: c.id,
+      compressorId: c.compressorId,
+      changedAt: c.changedAt,
+      hourMeterH: c.hourMeterH,
+      lot: c.lot,
+      note: c.note,
+      photo: name(c.photoAttachmentId),
+      createdBy: createdBy ?? "",
+    }));
+}
+
+/** Every test sampled before `to`, oldest first (a month's due dates depend on the last test before it). */
+export function airTestsBefore(db: Db, to: number): { compressorId: number; siteId: number; sampledAt: number; passed: boolean }[] {
+  return (
+    db.$client
+      .prepare(`SELECT compressor_id AS compressorId, site_id AS siteId, sampled_at AS sampledAt, passed FROM air_tests WHERE sampled_at < ? ORDER BY sampled_at`)
+      .all(to) as { compressorId: number; siteId: number; sampledAt: number; passed: number }[]
+  ).map((r) => ({ ...r, passed: r.passed === 1 }));
+}
+
+export function cartridgeChangesBetween(db: Db, from: number, to: number): { compressorId: number; siteId: number; changedAt: number }[] {
+  return db.$client
+    .prepare(`SELECT compressor_id AS compressorId, site_id AS siteId, changed_at AS changedAt FROM cartridge_changes WHERE changed_at >= ? AND changed_at < ?`)
+    .all(from, to) as { compressorId: number; siteId: number; changedAt: number }[];
+}
