@@ -176,7 +176,8 @@ export function cartridgeUsage(db: Db, unit: UnitInfo, spec: PurifierSpec, now: 
       const u: Usage = fresh ? emptyUsage() : { waterG: row.waterG, runS: row.runS, freeAirM3: row.freeAirM3 };
       const from = fresh ? startHour : row.throughTs;
       if (from < doneBefore) {
-        addHourBuckets(tx, u, unit.id, spec, from, doneBefore);
+        // Raw statements run on the connection itself (the transaction is on it); drizzle's tx has no $client.
+        addHourBuckets(db, u, unit.id, spec, from, doneBefore);
         const values = { sinceTs: since, throughTs: doneBefore, waterG: u.waterG, runS: u.runS, freeAirM3: u.freeAirM3, specKey: key, updatedAt: now };
         tx.insert(purifierUsage)
           .values({ compressorId: unit.id, ...values })

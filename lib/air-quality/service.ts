@@ -44,7 +44,8 @@ export function recordAirTest(
   input: AirTestInput,
   actor: Actor,
   siteIds: number[] | null,
-  opts: { certificateAttachmentId?: number | null; now?: number; inTransaction?: (db: Db) => void } = {},
+  opts: { certificateAttachmentId?: number | null; now?: number; /** Runs in the record's transaction once the row exists (links an uploaded certificate); a throw stores nothing. */
+    attach?: (tx: Db, airTestId: number) => void } = {},
 ): RecordedTest {
   const now = opts.now ?? Date.now();
   const unit = unitOrMissing(db, input.compressorId, siteIds);
@@ -58,7 +59,6 @@ export function recordAirTest(
   const verdict = judgeAirTest(standard, input);
   return db.transaction(
     (tx) => {
-      opts.inTransaction?.(tx);
       const id = insertAirTest(tx, {
         compressorId: unit.id,
         siteId: unit.siteId,
@@ -97,7 +97,8 @@ export function recordAirTest(
         } against ${airStandardLabels[standard]}`,
         details: { airTestId: id, passed: verdict.passed, standard },
       });
-      const latest = latestAirTests(tx).get(unit.id);
+      opts.attach?.(tx, id);
+      const latest = latestAirTests(db).get(unit.id);
       const alarms: AirAlarmChange[] = [];
       // Only the newest sample decides: recording an old certificate late does not clear or raise anything newer.
       if (latest?.id === id) {
