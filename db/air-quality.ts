@@ -294,3 +294,29 @@ export function cartridgeChangesBetween(db: Db, from: number, to: number): { com
     .prepare(`SELECT compressor_id AS compressorId, site_id AS siteId, changed_at AS changedAt FROM cartridge_changes WHERE changed_at >= ? AND changed_at < ?`)
     .all(from, to) as { compressorId: number; siteId: number; changedAt: number }[];
 }
+
+/** Each model with its cartridge rating (if any) and back-pressure valve setting, for the settings form. */
+export function modelRatings(db: Db) {
+  const ratings = new Map(
+    db
+      .select()
+      .from(purifierRatings)
+      .where(eq(purifierRatings.scopeType, "model"))
+      .all()
+      .map((r) => [r.scopeId, r]),
+  );
+  return db
+    .select({ id: compressorModels.id, name: compressorModels.name, backPressureBar: compressorModels.backPressureBar })
+    .from(compressorModels)
+    .orderBy(compressorModels.name)
+    .all()
+    .map((m) => {
+      const r = ratings.get(m.id);
+      return {
+        modelId: m.id,
+        modelName: m.name,
+        backPressureBar: m.backPressureBar,
+        rating: r ? { kind: r.kind, value: r.value, refBar: r.refBar, refC: r.refC, advisoryPct: r.advisoryPct } : null,
+      };
+    });
+}
