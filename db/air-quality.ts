@@ -100,16 +100,16 @@ export function effectiveRatings(db: Db): (unit: Pick<UnitInfo, "id" | "modelId"
 
 export function saveRating(db: Db, input: PurifierRatingInput, userId: number, now = Date.now()): void {
   db.transaction(
-    (tx) => {
+    () => {
       const key = and(eq(purifierRatings.scopeType, input.scopeType), eq(purifierRatings.scopeId, input.scopeId));
-      if (input.rating === null) tx.delete(purifierRatings).where(key).run();
+      if (input.rating === null) db.delete(purifierRatings).where(key).run();
       else
-        tx.insert(purifierRatings)
+        db.insert(purifierRatings)
           .values({ scopeType: input.scopeType, scopeId: input.scopeId, ...input.rating, updatedAt: now, updatedBy: userId })
           .onConflictDoUpdate({ target: [purifierRatings.scopeType, purifierRatings.scopeId], set: { ...input.rating, updatedAt: now, updatedBy: userId } })
           .run();
       if (input.scopeType === "model" && input.backPressureBar !== undefined)
-        tx.update(compressorModels).set({ backPressureBar: input.backPressureBar }).where(eq(compressorModels.id, input.scopeId)).run();
+        db.update(compressorModels).set({ backPressureBar: input.backPressureBar }).where(eq(compressorModels.id, input.scopeId)).run();
     },
     { behavior: "immediate" },
   );
@@ -125,7 +125,7 @@ const specKey = (s: PurifierSpec) => JSON.stringify([s.ratedDeliveryLpm, s.backP
 
 type BucketRow = [runS: number, pcSum: number, pcN: number, pbSum: number, pbN: number, dSum: number, dN: number];
 
-const statements = new WeakMap<object, { buckets: Statement; lastChange: Statement }>();
+const statements = new WeakMap<object, { buckets: Statement }>();
 function prepared(db: Db) {
   let s = statements.get(db.$client);
   if (!s) {
@@ -136,16 +136,20 @@ function prepared(db: Db) {
              FROM readings_1h WHERE compressor_id = ? AND bucket_ts >= ? AND bucket_ts < ? AND run_s > 0`,
         )
         .raw(),
-      lastChange: db.$client.prepare(`SELECT changed_at FROM cartridge_changes WHERE compressor_id = ? ORDER BY changed_at DESC LIMIT 1`).pluck(),
     };
     statements.set(db.$client, s);
   }
   return s;
 }
 
+/** Milliseconds spent reading rollups vs computing water, for `npm run bench:purifier`. */
+export const purifierTimings = { sqlMs: 0, computeMs: 0, rows: 0 };
+
 /** Adds the 1-hour buckets in [from, to) to `u`. */
 export function addHourBuckets(db: Db, u: Usage, compressorId: number, spec: PurifierSpec, from: number, to: number): void {
+  const t0 = performance.now();
   const rows = prepared(db).buckets.all(compressorId, from, to) as BucketRow[];
+  const t1 = performance.now();
   const b = { runS: 0, purifierC: null as number | null, purifierBar: null as number | null, deliveryBar: null as number | null };
   for (const r of rows) {
     b.runS = r[0];
@@ -154,42 +158,115 @@ export function addHourBuckets(db: Db, u: Usage, compressorId: number, spec: Pur
     b.deliveryBar = r[6] > 0 ? r[5] / r[6] : null;
     addBucket(u, spec, b);
   }
+  purifierTimings.sqlMs += t1 - t0;
+  purifierTimings.computeMs += performance.now() - t1;
+  purifierTimings.rows += rows.length;
 }
 
-export function lastChangeAt(db: Db, compressorId: number): number | null {
-  return (prepared(db).lastChange.get(compressorId) as number | undefined) ?? null;
+
+type UsageRow = typeof purifierUsage.$inferSelect;
+export type UsageItem = { unit: Pick<UnitInfo, "id">; spec: PurifierSpec };
+
+/** Above this many units to sum from scratch, one sequential scan of the hour table beats an index walk per unit. */
+const SCAN_ABOVE = 50;
+
+const scanStatements = new WeakMap<object, Statement>();
+function scanStatement(db: Db): Statement {
+  let s = scanStatements.get(db.$client);
+  if (!s) {
+    s = db.$client
+      .prepare(
+        `SELECT compressor_id, bucket_ts, run_s, purifier_c_sum, purifier_c_n, purifier_bar_sum, purifier_bar_n, delivery_bar_sum, delivery_bar_n
+           FROM readings_1h WHERE bucket_ts >= ? AND bucket_ts < ? AND run_s > 0`,
+      )
+      .raw();
+    scanStatements.set(db.$client, s);
+  }
+  return s;
+}
+
+function addRow(u: Usage, spec: PurifierSpec, r: readonly number[], o: number): void {
+  addBucket(u, spec, {
+    runS: r[o]!,
+    purifierC: r[o + 2]! > 0 ? r[o + 1]! / r[o + 2]! : null,
+    purifierBar: r[o + 4]! > 0 ? r[o + 3]! / r[o + 4]! : null,
+    deliveryBar: r[o + 6]! > 0 ? r[o + 5]! / r[o + 6]! : null,
+  });
 }
 
 /**
- * Water taken up since the last change (from the start of that hour: an hour of over-count at most, on the safe side).
- * Complete hours are summed once and kept in purifier_usage; the hour under way is added live and not kept.
+ * Water taken up since each unit's last change (from the start of that hour: an hour of over-count at most, on the safe
+ * side). Complete hours are summed once and kept in purifier_usage, in one IMMEDIATE transaction for all units; the
+ * hour under way is added live and not kept.
  */
-export function cartridgeUsage(db: Db, unit: UnitInfo, spec: PurifierSpec, now: number): { usage: Usage; sinceTs: number } {
-  const since = lastChangeAt(db, unit.id) ?? 0;
-  const startHour = Math.floor(since / HOUR_MS) * HOUR_MS;
+export function cartridgeUsages(db: Db, items: readonly UsageItem[], now: number): Map<number, { usage: Usage; sinceTs: number }> {
   const doneBefore = Math.floor(now / HOUR_MS) * HOUR_MS;
-  const key = specKey(spec);
-  const usage = db.transaction(
-    (tx) => {
-      const row = tx.select().from(purifierUsage).where(eq(purifierUsage.compressorId, unit.id)).get();
-      const fresh = !row || row.sinceTs !== since || row.specKey !== key;
-      const u: Usage = fresh ? emptyUsage() : { waterG: row.waterG, runS: row.runS, freeAirM3: row.freeAirM3 };
-      const from = fresh ? startHour : row.throughTs;
-      if (from < doneBefore) {
-        // Raw statements run on the connection itself (the transaction is on it); drizzle's tx has no $client.
-        addHourBuckets(db, u, unit.id, spec, from, doneBefore);
-        const values = { sinceTs: since, throughTs: doneBefore, waterG: u.waterG, runS: u.runS, freeAirM3: u.freeAirM3, specKey: key, updatedAt: now };
-        tx.insert(purifierUsage)
-          .values({ compressorId: unit.id, ...values })
-          .onConflictDoUpdate({ target: purifierUsage.compressorId, set: values })
-          .run();
-      }
-      return u;
-    },
-    { behavior: "immediate" },
+  const ids = items.map((i) => i.unit.id);
+  const lastChanges = new Map(
+    (db.$client.prepare("SELECT compressor_id, MAX(changed_at) FROM cartridge_changes GROUP BY compressor_id").raw().all() as [number, number][]),
   );
-  addHourBuckets(db, usage, unit.id, spec, Math.max(doneBefore, startHour), doneBefore + HOUR_MS);
-  return { usage, sinceTs: since };
+  const plan = (rows: Map<number, UsageRow>) =>
+    items.map(({ unit, spec }) => {
+      const since = lastChanges.get(unit.id) ?? 0;
+      const key = specKey(spec);
+      const row = rows.get(unit.id);
+      const fresh = !row || row.sinceTs !== since || row.specKey !== key;
+      const usage: Usage = fresh ? emptyUsage() : { waterG: row.waterG, runS: row.runS, freeAirM3: row.freeAirM3 };
+      const from = fresh ? Math.floor(since / HOUR_MS) * HOUR_MS : row.throughTs;
+      return { unit, spec, since, key, fresh, usage, from };
+    });
+  const readRows = () =>
+    new Map(
+      (ids.length ? db.select().from(purifierUsage).where(inArray(purifierUsage.compressorId, ids)).all() : []).map((r) => [r.compressorId, r]),
+    );
+  let plans = plan(readRows());
+  if (plans.some((p) => p.from < doneBefore)) {
+    plans = db.transaction(
+      () => {
+        const ps = plan(readRows()); // again under the write lock: another process may have summed meanwhile
+        const todo = ps.filter((p) => p.from < doneBefore);
+        const fresh = todo.filter((p) => p.fresh);
+        const scanned = new Set<number>();
+        if (fresh.length > SCAN_ABOVE) {
+          const t0 = performance.now();
+          const minFrom = Math.min(...fresh.map((p) => p.from));
+          const byId = new Map(fresh.map((p) => [p.unit.id, p]));
+          const rows = scanStatement(db).all(minFrom, doneBefore) as number[][];
+          const t1 = performance.now();
+          for (const r of rows) {
+            const p = byId.get(r[0]!);
+            if (p && r[1]! >= p.from) addRow(p.usage, p.spec, r, 2);
+          }
+          purifierTimings.sqlMs += t1 - t0;
+          purifierTimings.computeMs += performance.now() - t1;
+          purifierTimings.rows += rows.length;
+          for (const p of fresh) scanned.add(p.unit.id);
+        }
+        for (const p of todo) {
+          if (!scanned.has(p.unit.id)) addHourBuckets(db, p.usage, p.unit.id, p.spec, p.from, doneBefore);
+          const values = { sinceTs: p.since, throughTs: doneBefore, waterG: p.usage.waterG, runS: p.usage.runS, freeAirM3: p.usage.freeAirM3, specKey: p.key, updatedAt: now };
+          db.insert(purifierUsage).values({ compressorId: p.unit.id, ...values }).onConflictDoUpdate({ target: purifierUsage.compressorId, set: values }).run();
+        }
+        return ps;
+      },
+      { behavior: "immediate" },
+    );
+  }
+  const out = new Map<number, { usage: Usage; sinceTs: number }>();
+  for (const p of plans) {
+    addHourBuckets(db, p.usage, p.unit.id, p.spec, Math.max(doneBefore, Math.floor(p.since / HOUR_MS) * HOUR_MS), doneBefore + HOUR_MS);
+    out.set(p.unit.id, { usage: p.usage, sinceTs: p.since });
+  }
+  return out;
+}
+
+export function cartridgeUsage(db: Db, unit: Pick<UnitInfo, "id">, spec: PurifierSpec, now: number): { usage: Usage; sinceTs: number } {
+  return cartridgeUsages(db, [{ unit, spec }], now).get(unit.id)!;
+}
+
+/** Keeps the last computed use beside the sums, for the board's badge. */
+export function notePurifierUse(db: Db, compressorId: number, usedPct: number, advisoryPct: number): void {
+  db.update(purifierUsage).set({ usedPct, advisoryPct }).where(eq(purifierUsage.compressorId, compressorId)).run();
 }
 
 /** The recent window's duty, for predictions. */

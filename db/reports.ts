@@ -1,3 +1,4 @@
+import { airQualityReportSection } from "./air-quality-report";
 import type { Statement } from "better-sqlite3";
 import type { Priority } from "@/shared/alarm-rules";
 import { priorities } from "@/shared/alarm-rules";
@@ -773,6 +774,7 @@ export function buildMonthlyReport(db: Db, req: ReportRequest): MonthlyReport | 
       note: plannedRecorded ? "Planned service from the event log (service.planned_start / service.planned_end)." : NO_PLANNED_SERVICE_NOTE,
     },
     alarmLoad: alarmLoadSites,
+    airQuality: airQualityReportSection(db, periods, resolved.compressors, now),
   };
 }
 

@@ -672,6 +672,9 @@ export const purifierUsage = sqliteTable("purifier_usage", {
   freeAirM3: real("free_air_m3").notNull().default(0),
   /** Fingerprint of the rating and settings the sums were made with; a change recomputes. */
   specKey: text("spec_key").notNull().default(""),
+  /** Last computed use, % of capacity, and the advisory level then in force (for the board's badge). */
+  usedPct: real("used_pct"),
+  advisoryPct: real("advisory_pct"),
   updatedAt: integer("updated_at").notNull(),
 });
 

@@ -64,6 +64,8 @@ CREATE TABLE `purifier_usage` (
 	`run_s` real DEFAULT 0 NOT NULL,
 	`free_air_m3` real DEFAULT 0 NOT NULL,
 	`spec_key` text DEFAULT '' NOT NULL,
+	`used_pct` real,
+	`advisory_pct` real,
 	`updated_at` integer NOT NULL
 );
 --> statement-breakpoint

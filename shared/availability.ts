@@ -1,3 +1,4 @@
+import type { AirQualityReportSite } from "./air-quality-report";
 import { z } from "zod";
 import type { AlarmLoadFigures, BenchmarkResult } from "./alarm-load";
 import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
@@ -503,6 +504,8 @@ export type MonthlyReport = {
   outages: OutageRow[];
   plannedService: { recorded: boolean; note: string };
   alarmLoad: AlarmLoadSite[];
+  /** Air-quality tests and cartridge changes per site (shared/air-quality-report.ts). */
+  airQuality?: AirQualityReportSite[];
 };
 
 export type ComparisonRow = {

@@ -1,3 +1,4 @@
+import { AirQualityReportSection } from "./air-quality-section";
 import { alarmBenchmarks, priorityLevel } from "@/shared/alarm-load";
 import {
   formatDuration,
@@ -331,6 +332,8 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
           </div>
         ))}
       </section>
+
+      <AirQualityReportSection sites={report.airQuality} print />
 
       {comparison ? (
         <section className="space-y-1">

@@ -4,7 +4,7 @@ import { revalidatePath } from "next/cache";
 import { saveRating, saveSiteAirSettings, airUnit } from "@/db/air-quality";
 import { writeAudit } from "@/db/audit";
 import { getDb } from "@/db/client";
-import { recordAirTest, recordCartridgeChange } from "@/lib/air-quality/service";
+import { AirQualityRefusal, recordAirTest, recordCartridgeChange } from "@/lib/air-quality/service";
 import { ActionFailure, runAction } from "@/lib/api/action";
 import {
   airTestInputSchema,
@@ -13,10 +13,19 @@ import {
   siteAirSettingsInputSchema,
 } from "@/shared/air-quality-schema";
 
+function refusals<T>(run: () => T): T {
+  try {
+    return run();
+  } catch (e) {
+    if (e instanceof AirQualityRefusal) throw new ActionFailure(e.status, e.message, e.fieldErrors);
+    throw e;
+  }
+}
+
 /** An air-test record (see airTestInputSchema); judged against the site's standard; nothing is stored if anything is refused. */
 export async function recordAirTestAction(input: unknown) {
   return runAction("airquality.record", airTestInputSchema, input, (data, user) => {
-    const r = recordAirTest(getDb(), data, { id: user.id, name: user.name }, user.siteIds);
+    const r = refusals(() => recordAirTest(getDb(), data, { id: user.id, name: user.name }, user.siteIds));
     revalidatePath("/air-quality");
     return { id: r.id, passed: r.passed, verdict: r.verdict };
   });
@@ -25,7 +34,7 @@ export async function recordAirTestAction(input: unknown) {
 /** { compressorId, changedAt, hourMeterH, lot, note } — resets the cartridge count. */
 export async function recordCartridgeChangeAction(input: unknown) {
   return runAction("airquality.record", cartridgeChangeInputSchema, input, (data, user) => {
-    const r = recordCartridgeChange(getDb(), data, { id: user.id, name: user.name }, user.siteIds);
+    const r = refusals(() => recordCartridgeChange(getDb(), data, { id: user.id, name: user.name }, user.siteIds));
     revalidatePath("/air-quality");
     return { id: r.id };
   });

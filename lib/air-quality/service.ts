@@ -3,6 +3,7 @@ import {
   airUnits,
   allSiteAirSettings,
   cartridgeUsage,
+  cartridgeUsages,
   DEFAULT_INTERVAL_DAYS,
   DEFAULT_STANDARD,
   effectiveRatings,
@@ -11,6 +12,7 @@ import {
   insertCartridgeChange,
   latestAirTests,
   listCartridgeChanges,
+  notePurifierUse,
   recentUsage,
   specFor,
   type AttachmentNamer,
@@ -19,20 +21,30 @@ import {
 } from "@/db/air-quality";
 import type { Db } from "@/db/client";
 import { appendEvent } from "@/db/events";
-import { ActionFailure } from "@/lib/api/action";
 import type { AirQualityRowDto, AirTestInput, CartridgeChangeInput, CartridgeDto } from "@/shared/air-quality-schema";
 import { analyteFields } from "@/shared/air-quality-schema";
 import { DO_NOT_USE_AIR } from "@/shared/air-quality-alarms";
 import { airStandardLabels, analyteLabels, judgeAirTest, requiredAnalytes, type AirTestVerdict } from "@/shared/air-standards";
-import { cartridgeLevel, cartridgeStatus, DAY_MS, DEFAULT_ADVISORY_PCT, RECENT_WINDOW_MS } from "@/shared/purifier";
+import { cartridgeLevel, cartridgeStatus, DAY_MS, DEFAULT_ADVISORY_PCT, RECENT_WINDOW_MS, type Usage } from "@/shared/purifier";
 import { setAirAlarm, type AirAlarmChange } from "./alarm-seam";
 
 export type Actor = { id: number; name: string };
 
+/** A record refused for what it says (400) or names (404); the action turns it into its failure shape. */
+export class AirQualityRefusal extends Error {
+  constructor(
+    readonly status: 400 | 404,
+    message: string,
+    readonly fieldErrors?: Record<string, string[]>,
+  ) {
+    super(message);
+  }
+}
+
 function unitOrMissing(db: Db, compressorId: number, siteIds: number[] | null): UnitInfo {
   const unit = airUnit(db, compressorId);
   // Outside the caller's sites answers like a compressor that does not exist.
-  if (!unit || (siteIds !== null && !siteIds.includes(unit.siteId))) throw new ActionFailure(404, "No such compressor.");
+  if (!unit || (siteIds !== null && !siteIds.includes(unit.siteId))) throw new AirQualityRefusal(404, "No such compressor.");
   return unit;
 }
 
@@ -55,11 +67,11 @@ export function recordAirTest(
     const field = analyteFields[a];
     if (input[field] == null) missing[field] = [`${airStandardLabels[standard]} limits ${analyteLabels[a].toLowerCase()}: enter the result`];
   }
-  if (Object.keys(missing).length) throw new ActionFailure(400, "Some results the standard limits are missing.", missing);
+  if (Object.keys(missing).length) throw new AirQualityRefusal(400, "Some results the standard limits are missing.", missing);
   const verdict = judgeAirTest(standard, input);
   return db.transaction(
-    (tx) => {
-      const id = insertAirTest(tx, {
+    () => {
+      const id = insertAirTest(db, {
         compressorId: unit.id,
         siteId: unit.siteId,
         sampledAt: input.sampledAt,
@@ -84,7 +96,7 @@ export function recordAirTest(
         createdAt: now,
       });
       const failed = verdict.analytes.filter((a) => a.result === "fail" || a.result === "missing").map((a) => analyteLabels[a.analyte].toLowerCase());
-      appendEvent(tx, {
+      appendEvent(db, {
         ts: now,
         kind: "air-test",
         action: "air.test_recorded",
@@ -97,16 +109,16 @@ export function recordAirTest(
         } against ${airStandardLabels[standard]}`,
         details: { airTestId: id, passed: verdict.passed, standard },
       });
-      opts.attach?.(tx, id);
+      opts.attach?.(db, id);
       const latest = latestAirTests(db).get(unit.id);
       const alarms: AirAlarmChange[] = [];
       // Only the newest sample decides: recording an old certificate late does not clear or raise anything newer.
       if (latest?.id === id) {
         const unitRef = { id: unit.id, siteId: unit.siteId, name: unit.name };
-        const f = setAirAlarm(tx, unitRef, "air-test-failed", !verdict.passed, now, verdict.passed ? "" : `air test ${input.certificateNo} failed (${failed.join(", ")}). ${DO_NOT_USE_AIR}`);
+        const f = setAirAlarm(db, unitRef, "air-test-failed", !verdict.passed, now, verdict.passed ? "" : `air test ${input.certificateNo} failed (${failed.join(", ")}). ${DO_NOT_USE_AIR}`);
         if (f) alarms.push(f);
-        const { intervalDays } = getSiteAirSettings(tx, unit.siteId);
-        const o = setAirAlarm(tx, unitRef, "air-test-overdue", now > input.sampledAt + intervalDays * DAY_MS, now, "the air test is overdue");
+        const { intervalDays } = getSiteAirSettings(db, unit.siteId);
+        const o = setAirAlarm(db, unitRef, "air-test-overdue", now > input.sampledAt + intervalDays * DAY_MS, now, "the air test is overdue");
         if (o) alarms.push(o);
       }
       return { id, passed: verdict.passed, verdict, alarms };
@@ -125,8 +137,8 @@ export function recordCartridgeChange(
   const now = opts.now ?? Date.now();
   const unit = unitOrMissing(db, input.compressorId, siteIds);
   return db.transaction(
-    (tx) => {
-      const id = insertCartridgeChange(tx, {
+    () => {
+      const id = insertCartridgeChange(db, {
         compressorId: unit.id,
         siteId: unit.siteId,
         changedAt: input.changedAt,
@@ -137,7 +149,7 @@ export function recordCartridgeChange(
         createdBy: actor.id,
         createdAt: now,
       });
-      appendEvent(tx, {
+      appendEvent(db, {
         ts: now,
         kind: "service",
         action: "air.cartridge_changed",
@@ -148,7 +160,7 @@ export function recordCartridgeChange(
         details: { cartridgeChangeId: id },
       });
       const unitRef = { id: unit.id, siteId: unit.siteId, name: unit.name };
-      const alarms = [setAirAlarm(tx, unitRef, "cartridge-spent", false, now), setAirAlarm(tx, unitRef, "cartridge-advisory", false, now)].filter(
+      const alarms = [setAirAlarm(db, unitRef, "cartridge-spent", false, now), setAirAlarm(db, unitRef, "cartridge-advisory", false, now)].filter(
         (c): c is AirAlarmChange => c !== null,
       );
       return { id, alarms };
@@ -158,14 +170,22 @@ export function recordCartridgeChange(
 }
 
 /** Cartridge figures for one unit (the incremental sum is brought up to date on the way). */
-export function cartridgeFor(db: Db, unit: UnitInfo, rated: EffectiveRating | null, now: number, name?: AttachmentNamer): CartridgeDto {
+export function cartridgeFor(
+  db: Db,
+  unit: UnitInfo,
+  rated: EffectiveRating | null,
+  now: number,
+  name?: AttachmentNamer,
+  summed?: { usage: Usage; sinceTs: number },
+): CartridgeDto {
   const lastChange = listCartridgeChanges(db, unit.id, 1, name)[0] ?? null;
   if (!rated) return { status: null, level: null, advisoryPct: DEFAULT_ADVISORY_PCT, sinceTs: lastChange?.changedAt ?? null, lastChange, ratingSource: null, backPressureBar: unit.backPressureBar };
   const spec = specFor(unit, rated);
-  const { usage, sinceTs } = cartridgeUsage(db, unit, spec, now);
+  const { usage, sinceTs } = summed ?? cartridgeUsage(db, unit, spec, now);
   const from = Math.max(now - RECENT_WINDOW_MS, sinceTs);
   const recent = recentUsage(db, unit.id, spec, from, now + 1);
   const status = cartridgeStatus(spec, usage, recent, now - from, now);
+  notePurifierUse(db, unit.id, status.usedPct, rated.advisoryPct);
   return {
     status,
     level: cartridgeLevel(status.usedPct, rated.advisoryPct),
@@ -178,11 +198,21 @@ export function cartridgeFor(db: Db, unit: UnitInfo, rated: EffectiveRating | nu
 }
 
 /** Every compressor in scope by next test due, overdue first. */
-export function airQualityOverview(db: Db, siteIds: number[] | null, now = Date.now()): AirQualityRowDto[] {
+export function airQualityOverview(db: Db, siteIds: number[] | null, now = Date.now(), onlyCompressorId?: number): AirQualityRowDto[] {
   const settings = allSiteAirSettings(db);
   const latest = latestAirTests(db);
   const ratingOf = effectiveRatings(db);
-  const rows = airUnits(db, siteIds).map((u): AirQualityRowDto => {
+  const units = airUnits(db, siteIds).filter((u) => onlyCompressorId === undefined || u.id === onlyCompressorId);
+  const rated = new Map(units.map((u) => [u.id, ratingOf(u)]));
+  const summed = cartridgeUsages(
+    db,
+    units.flatMap((u) => {
+      const r = rated.get(u.id);
+      return r ? [{ unit: u, spec: specFor(u, r) }] : [];
+    }),
+    now,
+  );
+  const rows = units.map((u): AirQualityRowDto => {
     const s = settings.get(u.siteId) ?? { standard: DEFAULT_STANDARD, intervalDays: DEFAULT_INTERVAL_DAYS };
     const last = latest.get(u.id) ?? null;
     const nextDueAt = (last?.sampledAt ?? u.createdAt) + s.intervalDays * DAY_MS;
@@ -198,7 +228,7 @@ export function airQualityOverview(db: Db, siteIds: number[] | null, now = Date.
       lastTest: last,
       nextDueAt,
       overdueDays: Math.max(0, Math.floor((now - nextDueAt) / DAY_MS)),
-      cartridge: cartridgeFor(db, u, ratingOf(u), now),
+      cartridge: cartridgeFor(db, u, rated.get(u.id) ?? null, now, undefined, summed.get(u.id)),
     };
   });
   return rows.sort((a, b) => (a.nextDueAt ?? 0) - (b.nextDueAt ?? 0) || a.compressorName.localeCompare(b.compressorName));
@@ -214,11 +244,11 @@ export function runAirQualityWatch(db: Db, now = Date.now()): AirAlarmChange[] {
     const lvl = row.cartridge.level;
     const pct = row.cartridge.status ? `${row.cartridge.status.usedPct.toFixed(0)} %` : "";
     db.transaction(
-      (tx) => {
+      () => {
         for (const c of [
-          setAirAlarm(tx, unit, "air-test-overdue", overdue, now, `air test overdue by ${row.overdueDays} day(s)`),
-          setAirAlarm(tx, unit, "cartridge-spent", lvl === "warning", now, `purifier cartridge at ${pct} of its water capacity`),
-          setAirAlarm(tx, unit, "cartridge-advisory", lvl === "advisory", now, `purifier cartridge at ${pct} of its water capacity`),
+          setAirAlarm(db, unit, "air-test-overdue", overdue, now, `air test overdue by ${row.overdueDays} day(s)`),
+          setAirAlarm(db, unit, "cartridge-spent", lvl === "warning", now, `purifier cartridge at ${pct} of its water capacity`),
+          setAirAlarm(db, unit, "cartridge-advisory", lvl === "advisory", now, `purifier cartridge at ${pct} of its water capacity`),
         ])
           if (c) out.push(c);
       },

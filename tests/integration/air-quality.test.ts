@@ -1,8 +1,7 @@
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
 import { cartridgeUsage, airUnit, effectiveRatings, saveRating, saveSiteAirSettings, specFor } from "@/db/air-quality";
 import { createReadingStore } from "@/db/readings";
-import { ActionFailure } from "@/lib/api/action";
-import { recordAirTest, recordCartridgeChange, airQualityOverview, runAirQualityWatch } from "@/lib/air-quality/service";
+import { AirQualityRefusal, recordAirTest, recordCartridgeChange, airQualityOverview, runAirQualityWatch } from "@/lib/air-quality/service";
 import type { AirTestInput } from "@/shared/air-quality-schema";
 import { addBucket, emptyUsage, HOUR_MS } from "@/shared/purifier";
 import { makeTempDb, reading, seedFleet, T0, type Fleet, type TempDb } from "./alarms-fixtures";
@@ -58,11 +57,11 @@ describe("air-test records", () => {
 
   it("refuses a record missing a limited analyte, and a compressor outside the caller's sites, storing nothing", () => {
     const now = T0;
-    expect(() => recordAirTest(t.db, { ...passing(fleet.c1, now), coPpm: null }, tech, null, { now })).toThrow(ActionFailure);
+    expect(() => recordAirTest(t.db, { ...passing(fleet.c1, now), coPpm: null }, tech, null, { now })).toThrow(AirQualityRefusal);
     try {
       recordAirTest(t.db, { ...passing(fleet.c1, now), coPpm: null }, tech, null, { now });
     } catch (e) {
-      expect((e as ActionFailure).fieldErrors).toHaveProperty("coPpm");
+      expect((e as AirQualityRefusal).fieldErrors).toHaveProperty("coPpm");
     }
     expect(() => recordAirTest(t.db, passing(fleet.c2, now), tech, [fleet.siteA], { now })).toThrow(/No such compressor/);
     expect(() =>
