@@ -37,6 +37,7 @@ export default defineConfig({
       MQTT_PORT: String(e2e.mqttPort),
       LIVE_PORT: String(e2e.livePort),
       SMTP_PORT: String(e2e.smtpPort),
+      S3_PORT: String(e2e.s3Port),
       DATABASE_URL: e2e.databaseUrl,
       NEXTAUTH_URL: e2e.baseURL,
       NEXT_TELEMETRY_DISABLED: "1",

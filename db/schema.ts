@@ -621,6 +621,108 @@ export type NotifyThreadRow = typeof notifyThreads.$inferSelect;
 export type MailOutboxRow = typeof mailOutbox.$inferSelect;
 export type MailReceivedRow = typeof mailReceived.$inferSelect;
 
+// ---- Attachments, service plans, service log and planned service windows ----
+
+/**
+ * A file kept in the object store (S3 or the local fake), owned by one record of some kind (a service-log entry, an air
+ * test). The key is generated; the person's file name is metadata only. A row with status "failed" records an upload
+ * that did not reach the store, so its owner can say so; it has no key.
+ */
+export const attachments = sqliteTable(
+  "attachments",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    ownerKind: text("owner_kind").notNull(),
+    ownerId: integer("owner_id").notNull(),
+    compressorId: integer("compressor_id").notNull(),
+    siteId: integer("site_id").notNull(),
+    status: text("status", { enum: ["stored", "failed"] }).notNull(),
+    key: text("key").unique(),
+    /** Sanitised original file name. */
+    name: text("name").notNull(),
+    /** Sniffed from the bytes. */
+    contentType: text("content_type").notNull().default(""),
+    size: integer("size").notNull().default(0),
+    sha256: text("sha256"),
+    error: text("error"),
+    uploadedBy: integer("uploaded_by"),
+    uploadedByName: text("uploaded_by_name").notNull().default(""),
+    uploadedAt: integer("uploaded_at").notNull(),
+  },
+  (t) => [index("attachments_owner_idx").on(t.ownerKind, t.ownerId), index("attachments_site_idx").on(t.siteId, t.uploadedAt)],
+);
+
+/** A service task of a model's plan, or a compressor's override of it (same code), or a compressor's own task. */
+export const serviceTasks = sqliteTable(
+  "service_tasks",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    scopeType: text("scope_type", { enum: ["model", "compressor"] }).notNull(),
+    scopeId: integer("scope_id").notNull(),
+    code: text("code").notNull(),
+    name: text("name").notNull(),
+    /** Due every this many run hours; null: calendar only. */
+    everyHours: real("every_hours"),
+    /** Due every this many calendar months (site time zone); null: run hours only. */
+    everyMonths: integer("every_months"),
+    /** A compressor override with enabled = false switches an inherited task off. */
+    enabled: integer("enabled", { mode: "boolean" }).notNull().default(true),
+    note: text("note").notNull().default(""),
+    updatedAt: integer("updated_at").notNull(),
+    updatedBy: integer("updated_by"),
+  },
+  (t) => [uniqueIndex("service_tasks_key_idx").on(t.scopeType, t.scopeId, t.code)],
+);
+
+/** What a technician did on a compressor, and when. Each task code logged here restarts that task's interval. */
+export const serviceLog = sqliteTable(
+  "service_log",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    compressorId: integer("compressor_id")
+      .notNull()
+      .references(() => compressors.id),
+    siteId: integer("site_id").notNull(),
+    doneAt: integer("done_at").notNull(),
+    hourMeterH: real("hour_meter_h"),
+    /** Task codes done, with their names at the time. */
+    tasks: text("tasks", { mode: "json" }).$type<{ code: string; name: string }[]>().notNull(),
+    parts: text("parts").notNull().default(""),
+    notes: text("notes").notNull().default(""),
+    performedBy: integer("performed_by"),
+    performedByName: text("performed_by_name").notNull().default(""),
+    /** Client-generated id of the form submission: a repeated submit finds the entry it already made. */
+    submissionId: text("submission_id").notNull().unique(),
+    createdAt: integer("created_at").notNull(),
+    correctedAt: integer("corrected_at"),
+    correctedBy: integer("corrected_by"),
+  },
+  (t) => [index("service_log_compressor_idx").on(t.compressorId, t.doneAt), index("service_log_site_idx").on(t.siteId, t.doneAt)],
+);
+
+/** A compressor taken out of use for planned service; its start and end also go to the event log for the report. */
+export const serviceWindows = sqliteTable(
+  "service_windows",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    compressorId: integer("compressor_id")
+      .notNull()
+      .references(() => compressors.id),
+    siteId: integer("site_id").notNull(),
+    startAt: integer("start_at").notNull(),
+    endAt: integer("end_at").notNull(),
+    reason: text("reason").notNull(),
+    createdBy: integer("created_by"),
+    createdAt: integer("created_at").notNull(),
+  },
+  (t) => [index("service_windows_compressor_idx").on(t.compressorId, t.startAt)],
+);
+
+export type AttachmentRow = typeof attachments.$inferSelect;
+export type ServiceTaskRow = typeof serviceTasks.$inferSelect;
+export type ServiceLogRow = typeof serviceLog.$inferSelect;
+export type ServiceWindowRow = typeof serviceWindows.$inferSelect;
+
 // ---- Air quality: purifier cartridge ratings, changes and usage; breathing-air test records; per-site test settings ----
 
 /** Cartridge rating per model (the template) with optional per-compressor override. */

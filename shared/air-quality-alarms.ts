@@ -2,6 +2,10 @@
 import type { Priority } from "./alarm-rules";
 import { cautions } from "./safety";
 
+/** Condition-alarm family (shared/alarm-conditions.ts); the kinds below are its subjects. */
+export const AIR_ALARM_FAMILY = "air-quality";
+export const airAlarmKey = (kind: AirAlarmKind) => `cond:${AIR_ALARM_FAMILY}:${kind}`;
+
 export const airAlarmKinds = ["air-test-failed", "air-test-overdue", "cartridge-advisory", "cartridge-spent"] as const;
 export type AirAlarmKind = (typeof airAlarmKinds)[number];
 
@@ -23,8 +27,15 @@ export const DO_NOT_USE_AIR = "Do not use air from this compressor until it has 
 export const SPENT_CARTRIDGE_CAUTION =
   "A spent purifier cartridge passes wet air that can freeze regulators and corrode cylinders; change it before filling.";
 
-export function isAirAlarmKind(key: string): key is AirAlarmKind {
-  return (airAlarmKinds as readonly string[]).includes(key);
+export function isAirAlarmKind(subject: string): subject is AirAlarmKind {
+  return (airAlarmKinds as readonly string[]).includes(subject);
+}
+
+/** The kind of an alarm key "cond:air-quality:<kind>", or null. */
+export function airAlarmKindOf(key: string): AirAlarmKind | null {
+  const prefix = `cond:${AIR_ALARM_FAMILY}:`;
+  const k = key.startsWith(prefix) ? key.slice(prefix.length) : "";
+  return isAirAlarmKind(k) ? k : null;
 }
 
 /** The trade's cautions shown with each of these alarms. */

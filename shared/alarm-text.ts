@@ -2,11 +2,11 @@
  * The words for alarms, in one place: screens, e-mails and the event log all build their titles and sentences here.
  * Pure; values arrive in stored units (bar, °C) and are written in them (the event log is stored once, for everyone).
  */
+import { conditionTitle } from "./alarm-conditions";
 import { alarmSignalSchema, signalInfo, type AlarmSignal, type Priority } from "./alarm-rules";
 import { stateLabels, type AlarmState } from "./alarm-lifecycle";
 import type { RunState } from "./telemetry";
 import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
-import { airAlarmTitles, isAirAlarmKind } from "./air-quality-alarms";
 
 export const TRIP_ALARM_KEY = "trip";
 export const COMMS_ALARM_KEY = "comms";
@@ -34,7 +34,8 @@ const lowerFirst = (s: string) => s.charAt(0).toLowerCase() + s.slice(1);
 export function alarmTitle(a: AlarmTextInput): string {
   if (a.key === TRIP_ALARM_KEY) return a.tripCode != null ? `Trip ${a.tripCode}: ${tripCodeLabel(a.tripCode)}` : "Compressor tripped";
   if (a.key === COMMS_ALARM_KEY) return "Communication lost";
-  if (isAirAlarmKind(a.key)) return airAlarmTitles[a.key];
+  const condition = conditionTitle(a.key);
+  if (condition) return condition;
   const s = parseLimitKey(a.key);
   if (!s) return a.key;
   return `${signalInfo[s.signal].label} ${s.direction}`;
@@ -72,6 +73,8 @@ export type AlarmSentenceInput = AlarmTextInput & {
   chattering?: boolean;
   /** The state the alarm was left in, when it is not the plain annunciated one. */
   state?: AlarmState;
+  /** Condition alarms: what the raising or clearing code says about it ("due in 32 h or by 14 Mar 2027"). */
+  detail?: string | null;
 };
 
 function heldSuffix(state: AlarmState | undefined): string {
@@ -88,7 +91,8 @@ export function raiseSentence(a: AlarmSentenceInput): string {
     return `${who}: tripped${code}${why}${heldSuffix(a.state)}`;
   }
   if (a.key === COMMS_ALARM_KEY) return `${who}: communication lost${heldSuffix(a.state)}`;
-  if (isAirAlarmKind(a.key)) return `${who}: ${lowerFirst(airAlarmTitles[a.key])}${heldSuffix(a.state)}`;
+  const condition = conditionTitle(a.key);
+  if (condition) return `${who}: ${lowerFirst(condition)} (${a.priority})${a.detail ? `: ${a.detail}` : ""}${heldSuffix(a.state)}`;
   const s = parseLimitKey(a.key);
   if (!s) return `${who}: ${a.key} alarm raised${heldSuffix(a.state)}`;
   const label = lowerFirst(signalInfo[s.signal].label);
@@ -107,7 +111,8 @@ export function clearSentence(a: AlarmSentenceInput & { reason?: "returned" | "l
     return `${who}: trip reset${code}`;
   }
   if (a.key === COMMS_ALARM_KEY) return `${who}: communication restored`;
-  if (isAirAlarmKind(a.key)) return `${who}: ${lowerFirst(airAlarmTitles[a.key])}: cleared`;
+  const condition = conditionTitle(a.key);
+  if (condition) return `${who}: ${lowerFirst(condition)} (${a.priority}) cleared${a.detail ? `: ${a.detail}` : ""}`;
   const s = parseLimitKey(a.key);
   if (!s) return `${who}: ${a.key} alarm cleared`;
   const label = lowerFirst(signalInfo[s.signal].label);

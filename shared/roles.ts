@@ -26,9 +26,12 @@ export const permissionTable = {
   "notes.write": ["supervisor", "technician", "engineer", "admin"],
   "thresholds.view": ["technician", "engineer", "admin"],
   "thresholds.edit": ["engineer", "admin"],
-  "service.view": ["technician", "engineer", "manager", "admin"],
+  // Supervisors see what is due or under service at their sites (which unit is out for service, whose oil is overdue).
+  "service.view": ["supervisor", "technician", "engineer", "manager", "admin"],
   "service.log": ["technician", "admin"],
   "service.reset": ["technician", "admin"],
+  "service.plan": ["technician", "engineer", "admin"],
+  "service.correct": ["admin"],
   "airquality.view": ["supervisor", "technician", "engineer", "manager", "admin"],
   "airquality.record": ["technician", "admin"],
   "reports.view": ["manager", "engineer", "admin"],

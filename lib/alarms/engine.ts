@@ -25,7 +25,8 @@ import {
 } from "@/shared/alarm-eval";
 import { alarmStates, dueForReAlarm } from "@/shared/alarm-lifecycle";
 import { defaultAlarmSettings, limitKey, type AlarmSettings, type AlarmSignal, type Limit } from "@/shared/alarm-rules";
-import { COMMS_ALARM_KEY, parseLimitKey } from "@/shared/alarm-text";
+import { isConditionKey } from "@/shared/alarm-conditions";
+import { COMMS_ALARM_KEY } from "@/shared/alarm-text";
 import { runStateCode, runStates, type ReadingInput, type RunState } from "@/shared/telemetry";
 import { createSnapshotStore, parseSnapshot, type EngineSnapshot } from "./snapshot";
 import {
@@ -245,8 +246,8 @@ export function createAlarmEngine(db: Db, opts: AlarmEngineOptions = {}): AlarmE
       }
     }
     for (const key of activeKeys) {
-      // Only limit keys have evaluator timers; trip, comms and condition alarms (air quality) are raised elsewhere.
-      if (key === TRIP_KEY || key === COMMS_ALARM_KEY || !parseLimitKey(key)) continue;
+      // Condition alarms (lib/alarms/conditions.ts) are raised and cleared by their own callers, never by limits.
+      if (key === TRIP_KEY || key === COMMS_ALARM_KEY || isConditionKey(key)) continue;
       state.limits[key] ??= { active: true, since: null, raises: [] };
     }
     const trip = open.find((r) => r.key === TRIP_KEY && r.active);

@@ -99,7 +99,7 @@ const announceAfresh = { ackAt: null, ackBy: null, ackComment: null, reAlarmedAt
 export function applyRaise(
   db: Db,
   u: UnitRef,
-  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "limit" | "tripCode" | "chattering">,
+  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "limit" | "tripCode" | "chattering"> & { detail?: string | null },
   updatedAt: number,
 ): AlarmTransition {
   const row = findOpenAlarm(db, u.id, e.key);
@@ -160,8 +160,10 @@ export function applyRaise(
     tripCode,
     chattering,
     state: to,
+    detail: e.detail,
   });
   return record(db, u, { id, key: e.key, priority: e.priority }, "alarm.raise", from, to, true, e.ts, text, eventKindFor(e.key), {
+    ...(e.detail ? { detail: e.detail } : {}),
     value: e.value,
     limit: limitValue,
     ...(isTrip ? { tripCode } : {}),
@@ -173,7 +175,7 @@ export function applyRaise(
 export function applyClear(
   db: Db,
   u: UnitRef,
-  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "limit" | "tripCode">,
+  e: Pick<AlarmEvent, "key" | "priority" | "ts" | "value" | "limit" | "tripCode"> & { detail?: string | null },
   updatedAt: number,
   reason: "returned" | "limit-removed" = "returned",
 ): AlarmTransition | null {
@@ -190,8 +192,10 @@ export function applyClear(
     limitValue: e.limit?.value ?? row.limitValue,
     tripCode: row.tripCode,
     reason,
+    detail: e.detail,
   });
   return record(db, u, row, "alarm.clear", from, to, false, e.ts, text, eventKindFor(row.key), {
+    ...(e.detail ? { detail: e.detail } : {}),
     value: e.value,
     ...(reason !== "returned" ? { reason } : {}),
   });

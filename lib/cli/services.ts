@@ -11,7 +11,7 @@ export type ServiceOptions = {
   backfillDays?: number;
 };
 
-/** Starts broker (unless MQTT_URL names another), ingester, mail, web and optionally the simulator; returns where each listens. */
+/** Starts broker (unless MQTT_URL names another), ingester, mail, the S3 fake (unless S3_URL names a store), web and optionally the simulator; returns where each listens. */
 export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions): Promise<string[]> {
   const where: string[] = [];
   // The long-running server programs run bundled, on plain Node (source maps keep stack traces pointing at the sources).
@@ -33,6 +33,12 @@ export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions
       ? "Mail       alarm e-mail via SMTP_URL"
       : `Mail       smtp://127.0.0.1:${env.SMTP_PORT ?? "2525"} (SMTP fake; read it at /admin/mailbox)`,
   );
+  if (!env.S3_URL) {
+    startProcess("storage", process.execPath, await program("storage"), env);
+    where.push(`Files      http://${env.S3_HOST ?? "127.0.0.1"}:${env.S3_PORT ?? "4569"} (S3 fake; files under the data folder)`);
+  } else {
+    where.push("Files      S3_URL");
+  }
   startProcess("web", process.execPath, [next, "start", "-p", env.PORT ?? "3000", "-H", env.HOST ?? "127.0.0.1"], env);
 
   if (opts.simulator) {

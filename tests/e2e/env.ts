@@ -9,6 +9,7 @@ export const e2e = {
   mqttPort: 18831 + base,
   livePort: 13101 + base,
   smtpPort: 12526 + base,
+  s3Port: 14569 + base,
   databaseUrl: path.resolve("data/e2e/airkeep.db"),
   get baseURL() {
     return `http://localhost:${this.port}`;

@@ -46,8 +46,8 @@ describe("air-test records", () => {
     const bad = recordAirTest(t.db, { ...passing(fleet.c1, now - 3_600_000), coPpm: 7, certificateNo: "C-BAD" }, tech, null, { now });
     expect(bad.passed).toBe(false);
     expect(bad.verdict.analytes.find((a) => a.analyte === "co")!.result).toBe("fail");
-    expect(openAlarms(fleet.c1)).toEqual([{ key: "air-test-failed", priority: "critical", state: "active-unacknowledged", active: 1 }]);
-    const ev = t.db.$client.prepare("SELECT text FROM events WHERE kind = 'air-test' AND action = 'air.alarm_detail'").get() as { text: string };
+    expect(openAlarms(fleet.c1)).toEqual([{ key: "cond:air-quality:air-test-failed", priority: "critical", state: "active-unacknowledged", active: 1 }]);
+    const ev = t.db.$client.prepare("SELECT text FROM events WHERE action = 'alarm.raise' AND priority = 'critical'").get() as { text: string };
     expect(ev.text).toMatch(/Do not use air from this compressor until it has been retested/);
 
     const good = recordAirTest(t.db, { ...passing(fleet.c1, now - 60_000), certificateNo: "C-GOOD" }, tech, null, { now });
@@ -86,7 +86,7 @@ describe("air-test records", () => {
     expect(rows[0]!.overdueDays).toBe(10);
     expect(rows[1]!.overdueDays).toBe(0);
     runAirQualityWatch(t.db, now);
-    expect(openAlarms(fleet.c1)).toEqual([{ key: "air-test-overdue", priority: "warning", state: "active-unacknowledged", active: 1 }]);
+    expect(openAlarms(fleet.c1)).toEqual([{ key: "cond:air-quality:air-test-overdue", priority: "warning", state: "active-unacknowledged", active: 1 }]);
     expect(openAlarms(fleet.c2)).toEqual([]);
   });
 });
@@ -115,9 +115,9 @@ describe("cartridge use from the rollups", () => {
     // ≈ 90 m³ × 0.27 g/m³ = 24 g of a 30 g cartridge: past the 80 % advisory
     const now = T0 + 7 * HOUR_MS;
     runAirQualityWatch(t.db, now);
-    expect(openAlarms(fleet.c1).map((a) => a.key)).toContain("cartridge-advisory");
+    expect(openAlarms(fleet.c1).map((a) => a.key)).toContain("cond:air-quality:cartridge-advisory");
     recordCartridgeChange(t.db, { compressorId: fleet.c1, changedAt: now, hourMeterH: 1234, lot: "L-77", note: "" }, tech, null, { now });
-    expect(openAlarms(fleet.c1).filter((a) => a.active === 1).map((a) => a.key)).not.toContain("cartridge-advisory");
+    expect(openAlarms(fleet.c1).filter((a) => a.active === 1).map((a) => a.key)).not.toContain("cond:air-quality:cartridge-advisory");
     expect(cartridgeUsage(t.db, unit, spec, now + 1).usage.waterG).toBe(0);
   });
 });
