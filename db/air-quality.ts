@@ -11,6 +11,7 @@ import {
   type PurifierSpec,
   type Usage,
 } from "@/shared/purifier";
+import { getAttachment } from "./attachments";
 import type { Db } from "./client";
 import { airTests, cartridgeChanges, compressorModels, compressors, purifierRatings, purifierUsage, siteAirSettings, sites, users } from "./schema";
 
@@ -295,9 +296,13 @@ export function latestAirTests(db: Db): Map<number, { id: number; sampledAt: num
 }
 
 export type AttachmentNamer = (id: number | null) => { id: number; name: string } | null;
-const noAttachment: AttachmentNamer = () => null;
+/** A stored file's id and name (failed uploads have no file to link to). */
+const storedFile = (db: Db): AttachmentNamer => (id) => {
+  const a = id ? getAttachment(db, id) : null;
+  return a && a.status === "stored" ? { id: a.id, name: a.name } : null;
+};
 
-export function listAirTests(db: Db, f: { compressorId?: number; siteIds: number[] | null; from?: number; to?: number; limit?: number }, name: AttachmentNamer = noAttachment): AirTestDto[] {
+export function listAirTests(db: Db, f: { compressorId?: number; siteIds: number[] | null; from?: number; to?: number; limit?: number }, name: AttachmentNamer = storedFile(db)): AirTestDto[] {
   const where = [];
   if (f.compressorId) where.push(eq(airTests.compressorId, f.compressorId));
   if (f.siteIds) where.push(inArray(airTests.siteId, f.siteIds.length ? f.siteIds : [-1]));
@@ -336,7 +341,7 @@ export function insertCartridgeChange(db: Db, row: typeof cartridgeChanges.$infe
   return id;
 }
 
-export function listCartridgeChanges(db: Db, compressorId: number, limit = 20, name: AttachmentNamer = noAttachment): CartridgeChangeDto[] {
+export function listCartridgeChanges(db: Db, compressorId: number, limit = 20, name: AttachmentNamer = storedFile(db)): CartridgeChangeDto[] {
   return db
     .select({ c: cartridgeChanges, createdBy: users.name })
     .from(cartridgeChanges)

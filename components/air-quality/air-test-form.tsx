@@ -4,7 +4,9 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
-import { recordAirTestAction } from "@/lib/actions/air-quality";
+import { attachmentAccept } from "@/shared/attachment-schema";
+import { postRecord } from "./post-record";
+import type { AirTestVerdict } from "@/shared/air-standards";
 import { airTestInputSchema, waterUnitLabels, waterUnits } from "@/shared/air-quality-schema";
 import { airStandardLabels, type AirStandard } from "@/shared/air-standards";
 
@@ -33,6 +35,8 @@ const numOrNull = (s: string) => (s.trim() === "" ? null : Number(s.replace(",",
 export function AirTestForm({ units }: { units: UnitChoice[] }) {
   const router = useRouter();
   const [done, setDone] = useState<string | null>(null);
+  const [file, setFile] = useState<File | null>(null);
+  const [fileKey, setFileKey] = useState(0);
   const first = units[0];
   const initial: V = {
     compressorId: first ? String(first.id) : "",
@@ -82,10 +86,12 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
       className="space-y-3 rounded border border-line bg-raised p-4"
       onSubmit={async (e) => {
         e.preventDefault();
-        const r = await form.submit(recordAirTestAction);
+        const r = await form.submit((input) => postRecord<{ id: number; passed: boolean; verdict: AirTestVerdict }>("/api/air-quality/tests", input, file));
         if (r) {
           setDone(r.passed ? `Recorded: passed ${airStandardLabels[r.verdict.standard]}.` : `Recorded: FAILED ${airStandardLabels[r.verdict.standard]}. A critical alarm was raised.`);
           form.reset(initial);
+          setFile(null);
+          setFileKey((k) => k + 1);
           router.refresh();
         }
       }}
@@ -142,6 +148,27 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
         />
       </div>
       <TextField form={form} name="note" label="Note" />
+      <div>
+        <label htmlFor={`${form.id}-certificate`} className="block text-xs font-semibold text-muted">
+          Laboratory certificate (PDF or image, at most 20 MB)
+        </label>
+        <input
+          key={fileKey}
+          id={`${form.id}-certificate`}
+          name="certificate"
+          type="file"
+          accept={attachmentAccept}
+          onChange={(e) => setFile(e.target.files?.[0] ?? null)}
+          aria-invalid={form.errorOf("certificate" as keyof V & string) ? true : undefined}
+          aria-describedby={form.errorOf("certificate" as keyof V & string) ? `${form.id}-certificate-error` : undefined}
+          className="mt-0.5 text-sm"
+        />
+        {form.errorOf("certificate" as keyof V & string) && (
+          <p id={`${form.id}-certificate-error`} className="mt-0.5 border-l-4 border-ink pl-1.5 text-xs font-semibold" data-field-error="">
+            {form.errorOf("certificate" as keyof V & string)}
+          </p>
+        )}
+      </div>
       {form.formError && (
         <p role="alert" className="font-semibold">
           {form.formError}

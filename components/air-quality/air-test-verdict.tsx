@@ -38,7 +38,7 @@ export function AirTestVerdict({ t, timeZone }: { t: AirTestDto; timeZone: strin
           {t.samplePoint}, fill <span className="num">{t.fillBar} bar</span>, judged against {airStandardLabels[t.standard]}
         </span>
         {t.certificate && (
-          <a href={`/api/air-quality/files/${t.certificate.id}`} className="underline">
+          <a href={`/api/attachments/${t.certificate.id}`} className="underline">
             Certificate ({t.certificate.name})
           </a>
         )}

@@ -4,7 +4,8 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
-import { recordCartridgeChangeAction } from "@/lib/actions/air-quality";
+import { attachmentAccept } from "@/shared/attachment-schema";
+import { postRecord } from "./post-record";
 import { cartridgeChangeInputSchema } from "@/shared/air-quality-schema";
 import type { UnitChoice } from "./air-test-form";
 
@@ -13,6 +14,8 @@ type V = { compressorId: string; changedAt: string; hourMeterH: string; lot: str
 export function CartridgeChangeForm({ units }: { units: UnitChoice[] }) {
   const router = useRouter();
   const [done, setDone] = useState(false);
+  const [file, setFile] = useState<File | null>(null);
+  const [fileKey, setFileKey] = useState(0);
   const first = units[0];
   const initial: V = { compressorId: first ? String(first.id) : "", changedAt: first ? utcToZonedLocal(Date.now(), first.timeZone) : "", hourMeterH: "", lot: "", note: "" };
   const unitOf = (v: V) => units.find((u) => String(u.id) === v.compressorId);
@@ -35,9 +38,11 @@ export function CartridgeChangeForm({ units }: { units: UnitChoice[] }) {
       className="space-y-3 rounded border border-line bg-raised p-4"
       onSubmit={async (e) => {
         e.preventDefault();
-        if (await form.submit(recordCartridgeChangeAction)) {
+        if (await form.submit((input) => postRecord<{ id: number }>("/api/air-quality/cartridge-changes", input, file))) {
           setDone(true);
           form.reset(initial);
+          setFile(null);
+          setFileKey((k) => k + 1);
           router.refresh();
         }
       }}
@@ -65,6 +70,13 @@ export function CartridgeChangeForm({ units }: { units: UnitChoice[] }) {
         <TextField form={form} name="lot" label="Cartridge lot number" />
       </div>
       <TextField form={form} name="note" label="Note" />
+      <div>
+        <label htmlFor={`${form.id}-photo`} className="block text-xs font-semibold text-muted">
+          Photo (optional)
+        </label>
+        <input key={fileKey} id={`${form.id}-photo`} name="photo" type="file" accept={attachmentAccept} onChange={(e) => setFile(e.target.files?.[0] ?? null)} className="mt-0.5 text-sm" />
+        {form.errorOf("photo" as keyof V & string) && <p className="mt-0.5 border-l-4 border-ink pl-1.5 text-xs font-semibold">{form.errorOf("photo" as keyof V & string)}</p>}
+      </div>
       {form.formError && (
         <p role="alert" className="font-semibold">
           {form.formError}

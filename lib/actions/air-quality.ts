@@ -1,44 +1,14 @@
 "use server";
 
+// Air-test records and cartridge changes carry a file, so they go through route handlers (app/api/air-quality/*),
+// which stream it into the store; the settings below have none.
+
 import { revalidatePath } from "next/cache";
 import { saveRating, saveSiteAirSettings, airUnit } from "@/db/air-quality";
 import { writeAudit } from "@/db/audit";
 import { getDb } from "@/db/client";
-import { AirQualityRefusal, recordAirTest, recordCartridgeChange } from "@/lib/air-quality/service";
 import { ActionFailure, runAction } from "@/lib/api/action";
-import {
-  airTestInputSchema,
-  cartridgeChangeInputSchema,
-  purifierRatingInputSchema,
-  siteAirSettingsInputSchema,
-} from "@/shared/air-quality-schema";
-
-function refusals<T>(run: () => T): T {
-  try {
-    return run();
-  } catch (e) {
-    if (e instanceof AirQualityRefusal) throw new ActionFailure(e.status, e.message, e.fieldErrors);
-    throw e;
-  }
-}
-
-/** An air-test record (see airTestInputSchema); judged against the site's standard; nothing is stored if anything is refused. */
-export async function recordAirTestAction(input: unknown) {
-  return runAction("airquality.record", airTestInputSchema, input, (data, user) => {
-    const r = refusals(() => recordAirTest(getDb(), data, { id: user.id, name: user.name }, user.siteIds));
-    revalidatePath("/air-quality");
-    return { id: r.id, passed: r.passed, verdict: r.verdict };
-  });
-}
-
-/** { compressorId, changedAt, hourMeterH, lot, note } — resets the cartridge count. */
-export async function recordCartridgeChangeAction(input: unknown) {
-  return runAction("airquality.record", cartridgeChangeInputSchema, input, (data, user) => {
-    const r = refusals(() => recordCartridgeChange(getDb(), data, { id: user.id, name: user.name }, user.siteIds));
-    revalidatePath("/air-quality");
-    return { id: r.id };
-  });
-}
+import { purifierRatingInputSchema, siteAirSettingsInputSchema } from "@/shared/air-quality-schema";
 
 /** { siteId, standard, intervalDays } — administrators only. */
 export async function saveSiteAirSettingsAction(input: unknown) {

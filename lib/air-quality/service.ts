@@ -24,7 +24,7 @@ import { appendEvent } from "@/db/events";
 import type { AirQualityRowDto, AirTestInput, CartridgeChangeInput, CartridgeDto } from "@/shared/air-quality-schema";
 import { analyteFields } from "@/shared/air-quality-schema";
 import { DO_NOT_USE_AIR } from "@/shared/air-quality-alarms";
-import { airStandardLabels, analyteLabels, judgeAirTest, requiredAnalytes, type AirTestVerdict } from "@/shared/air-standards";
+import { airStandardLabels, analyteLabels, judgeAirTest, requiredAnalytes, type AirStandard, type AirTestVerdict } from "@/shared/air-standards";
 import { cartridgeLevel, cartridgeStatus, DAY_MS, DEFAULT_ADVISORY_PCT, RECENT_WINDOW_MS, type Usage } from "@/shared/purifier";
 import { setAirAlarm, type AirAlarmChange } from "./alarm-seam";
 
@@ -48,6 +48,19 @@ function unitOrMissing(db: Db, compressorId: number, siteIds: number[] | null): 
   return unit;
 }
 
+/** The checks that need the database: the compressor is the caller's, and every analyte the site's standard limits is given. */
+export function checkAirTest(db: Db, input: AirTestInput, siteIds: number[] | null): { unit: UnitInfo; standard: AirStandard } {
+  const unit = unitOrMissing(db, input.compressorId, siteIds);
+  const { standard } = getSiteAirSettings(db, unit.siteId);
+  const missing: Record<string, string[]> = {};
+  for (const a of requiredAnalytes(standard, input.fillBar)) {
+    const field = analyteFields[a];
+    if (input[field] == null) missing[field] = [`${airStandardLabels[standard]} limits ${analyteLabels[a].toLowerCase()}: enter the result`];
+  }
+  if (Object.keys(missing).length) throw new AirQualityRefusal(400, "Some results the standard limits are missing.", missing);
+  return { unit, standard };
+}
+
 export type RecordedTest = { id: number; passed: boolean; verdict: AirTestVerdict; alarms: AirAlarmChange[] };
 
 /** Judges the record against the site's standard and stores it with its event and alarm changes, all or nothing. */
@@ -60,14 +73,7 @@ export function recordAirTest(
     attach?: (tx: Db, airTestId: number) => void } = {},
 ): RecordedTest {
   const now = opts.now ?? Date.now();
-  const unit = unitOrMissing(db, input.compressorId, siteIds);
-  const { standard } = getSiteAirSettings(db, unit.siteId);
-  const missing: Record<string, string[]> = {};
-  for (const a of requiredAnalytes(standard, input.fillBar)) {
-    const field = analyteFields[a];
-    if (input[field] == null) missing[field] = [`${airStandardLabels[standard]} limits ${analyteLabels[a].toLowerCase()}: enter the result`];
-  }
-  if (Object.keys(missing).length) throw new AirQualityRefusal(400, "Some results the standard limits are missing.", missing);
+  const { unit, standard } = checkAirTest(db, input, siteIds);
   const verdict = judgeAirTest(standard, input);
   return db.transaction(
     () => {
@@ -132,7 +138,7 @@ export function recordCartridgeChange(
   input: CartridgeChangeInput,
   actor: Actor,
   siteIds: number[] | null,
-  opts: { photoAttachmentId?: number | null; now?: number } = {},
+  opts: { now?: number; attach?: (tx: Db, changeId: number, where: { compressorId: number; siteId: number }) => void } = {},
 ): { id: number; alarms: AirAlarmChange[] } {
   const now = opts.now ?? Date.now();
   const unit = unitOrMissing(db, input.compressorId, siteIds);
@@ -145,10 +151,10 @@ export function recordCartridgeChange(
         hourMeterH: input.hourMeterH,
         lot: input.lot,
         note: input.note,
-        photoAttachmentId: opts.photoAttachmentId ?? null,
         createdBy: actor.id,
         createdAt: now,
       });
+      opts.attach?.(db, id, { compressorId: unit.id, siteId: unit.siteId });
       appendEvent(db, {
         ts: now,
         kind: "service",
