@@ -243,10 +243,14 @@ export function cartridgeUsages(db: Db, items: readonly UsageItem[], now: number
           purifierTimings.rows += rows.length;
           for (const p of fresh) scanned.add(p.unit.id);
         }
+        const upsert = db.$client.prepare(
+          `INSERT INTO purifier_usage (compressor_id, since_ts, through_ts, water_g, run_s, free_air_m3, spec_key, updated_at) VALUES (?, ?, ?, ?, ?, ?, ?, ?)
+           ON CONFLICT (compressor_id) DO UPDATE SET since_ts = excluded.since_ts, through_ts = excluded.through_ts, water_g = excluded.water_g,
+             run_s = excluded.run_s, free_air_m3 = excluded.free_air_m3, spec_key = excluded.spec_key, updated_at = excluded.updated_at`,
+        );
         for (const p of todo) {
           if (!scanned.has(p.unit.id)) addHourBuckets(db, p.usage, p.unit.id, p.spec, p.from, doneBefore);
-          const values = { sinceTs: p.since, throughTs: doneBefore, waterG: p.usage.waterG, runS: p.usage.runS, freeAirM3: p.usage.freeAirM3, specKey: p.key, updatedAt: now };
-          db.insert(purifierUsage).values({ compressorId: p.unit.id, ...values }).onConflictDoUpdate({ target: purifierUsage.compressorId, set: values }).run();
+          upsert.run(p.unit.id, p.since, doneBefore, p.usage.waterG, p.usage.runS, p.usage.freeAirM3, p.key, now);
         }
         return ps;
       },
