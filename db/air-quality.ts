@@ -406,3 +406,9 @@ export function modelRatings(db: Db) {
       };
     });
 }
+
+/** One scope's own rating row (no inheritance), for the override form. */
+export function ownRating(db: Db, scopeType: "model" | "compressor", scopeId: number) {
+  const r = db.select().from(purifierRatings).where(and(eq(purifierRatings.scopeType, scopeType), eq(purifierRatings.scopeId, scopeId))).get();
+  return r ? { kind: r.kind, value: r.value, refBar: r.refBar, refC: r.refC, advisoryPct: r.advisoryPct } : null;
+}

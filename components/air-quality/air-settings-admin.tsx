@@ -1,8 +1,9 @@
 "use client";
 
 import { useRouter } from "next/navigation";
-import { useState } from "react";
-import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
+import { useState, type ReactNode } from "react";
+import { SelectField, TextField, useSchemaForm, type FormApi } from "@/components/admin/form-kit";
+import type { ActionResult } from "@/lib/api/action";
 import { savePurifierRatingAction, saveSiteAirSettingsAction } from "@/lib/actions/air-quality";
 import { purifierRatingInputSchema, siteAirSettingsInputSchema } from "@/shared/air-quality-schema";
 import { airStandardLabels, airStandards, type AirStandard } from "@/shared/air-standards";
@@ -15,14 +16,12 @@ export type ModelRating = {
   rating: { kind: "water-g" | "air-m3"; value: number; refBar: number; refC: number; advisoryPct: number } | null;
 };
 
-function SiteForm({ s }: { s: SiteSetting }) {
+type Action = (input: unknown) => Promise<ActionResult<unknown>>;
+
+/** One line of settings: its fields, Save, and what became of it. */
+function SettingsLine<V extends Record<string, unknown>>({ form, action, children }: { form: FormApi<V>; action: Action; children: ReactNode }) {
   const router = useRouter();
   const [saved, setSaved] = useState(false);
-  const form = useSchemaForm({
-    schema: siteAirSettingsInputSchema,
-    initial: { standard: s.standard as string, intervalDays: String(s.intervalDays) },
-    toInput: (v) => ({ siteId: s.siteId, standard: v.standard, intervalDays: Number(v.intervalDays) }),
-  });
   return (
     <form
       ref={form.formRef}
@@ -30,15 +29,13 @@ function SiteForm({ s }: { s: SiteSetting }) {
       className="flex flex-wrap items-end gap-3"
       onSubmit={async (e) => {
         e.preventDefault();
-        if (await form.submit(saveSiteAirSettingsAction)) {
+        if (await form.submit(action)) {
           setSaved(true);
           router.refresh();
         }
       }}
     >
-      <span className="w-56 font-semibold">{s.siteName}</span>
-      <SelectField form={form} name="standard" label="Standard" options={airStandards.map((x) => ({ value: x, label: airStandardLabels[x] }))} />
-      <TextField form={form} name="intervalDays" label="Test interval" unit="days" numeric />
+      {children}
       <button type="submit" className="rounded border border-line px-2 py-1 text-sm">
         Save
       </button>
@@ -48,9 +45,23 @@ function SiteForm({ s }: { s: SiteSetting }) {
   );
 }
 
-function ModelForm({ m }: { m: ModelRating }) {
-  const router = useRouter();
-  const [saved, setSaved] = useState(false);
+function SiteForm({ s }: { s: SiteSetting }) {
+  const form = useSchemaForm({
+    schema: siteAirSettingsInputSchema,
+    initial: { standard: s.standard as string, intervalDays: String(s.intervalDays) },
+    toInput: (v) => ({ siteId: s.siteId, standard: v.standard, intervalDays: Number(v.intervalDays) }),
+  });
+  return (
+    <SettingsLine form={form} action={saveSiteAirSettingsAction}>
+      <span className="w-56 font-semibold">{s.siteName}</span>
+      <SelectField form={form} name="standard" label="Standard" options={airStandards.map((x) => ({ value: x, label: airStandardLabels[x] }))} />
+      <TextField form={form} name="intervalDays" label="Test interval" unit="days" numeric />
+    </SettingsLine>
+  );
+}
+
+/** A model's rating (with its back-pressure valve), or a compressor's override of it (empty capacity: no override). */
+export function RatingForm({ m, scopeType = "model" }: { m: ModelRating; scopeType?: "model" | "compressor" }) {
   const r = m.rating;
   const form = useSchemaForm({
     schema: purifierRatingInputSchema,
@@ -63,25 +74,14 @@ function ModelForm({ m }: { m: ModelRating }) {
       backPressureBar: String(m.backPressureBar),
     },
     toInput: (v) => ({
-      scopeType: "model",
+      scopeType,
       scopeId: m.modelId,
       rating: v.value.trim() === "" ? null : { kind: v.kind, value: Number(v.value), refBar: Number(v.refBar), refC: Number(v.refC), advisoryPct: Number(v.advisoryPct) },
-      backPressureBar: Number(v.backPressureBar),
+      ...(scopeType === "model" ? { backPressureBar: Number(v.backPressureBar) } : {}),
     }),
   });
   return (
-    <form
-      ref={form.formRef}
-      noValidate
-      className="flex flex-wrap items-end gap-3"
-      onSubmit={async (e) => {
-        e.preventDefault();
-        if (await form.submit(savePurifierRatingAction)) {
-          setSaved(true);
-          router.refresh();
-        }
-      }}
-    >
+    <SettingsLine form={form} action={savePurifierRatingAction}>
       <span className="w-56 font-semibold">{m.modelName}</span>
       <SelectField
         form={form}
@@ -96,13 +96,8 @@ function ModelForm({ m }: { m: ModelRating }) {
       <TextField form={form} name="refBar" label="at" unit="bar" numeric />
       <TextField form={form} name="refC" label="and" unit="°C" numeric />
       <TextField form={form} name="advisoryPct" label="Advisory at" unit="%" numeric />
-      <TextField form={form} name="backPressureBar" label="Back-pressure valve" unit="bar" numeric />
-      <button type="submit" className="rounded border border-line px-2 py-1 text-sm">
-        Save
-      </button>
-      {form.formError && <span role="alert">{form.formError}</span>}
-      {saved && <span role="status">Saved</span>}
-    </form>
+      {scopeType === "model" && <TextField form={form} name="backPressureBar" label="Back-pressure valve" unit="bar" numeric />}
+    </SettingsLine>
   );
 }
 
@@ -121,7 +116,7 @@ export function AirSettingsAdmin({ sites, models }: { sites: SiteSetting[]; mode
         The supplier&apos;s rating: grams of water, or free air at a pressure and purifier temperature. A compressor can override its model&apos;s rating.
       </p>
       {models.map((m) => (
-        <ModelForm key={m.modelId} m={m} />
+        <RatingForm key={m.modelId} m={m} />
       ))}
     </section>
   );

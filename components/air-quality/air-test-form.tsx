@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
-import { attachmentAccept } from "@/shared/attachment-schema";
+import { FileField, LocalDateTimeField, SubmitRow } from "./form-parts";
 import { postRecord } from "./post-record";
 import type { AirTestVerdict } from "@/shared/air-standards";
 import { airTestInputSchema, waterUnitLabels, waterUnits } from "@/shared/air-quality-schema";
@@ -101,25 +101,7 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
       </h2>
       <div className="grid gap-3 sm:grid-cols-3">
         <SelectField form={form} name="compressorId" label="Compressor" options={units.map((u) => ({ value: String(u.id), label: `${u.name} (${u.siteName})` }))} />
-        <div>
-          <label htmlFor={form.fieldId("sampledAt")} className="block text-xs font-semibold text-muted">
-            Sampled at ({unit?.timeZone ?? "site time"})
-          </label>
-          <input
-            id={form.fieldId("sampledAt")}
-            type="datetime-local"
-            value={form.values.sampledAt}
-            onChange={(e) => form.set("sampledAt", e.target.value)}
-            aria-invalid={form.errorOf("sampledAt") ? true : undefined}
-            aria-describedby={form.errorOf("sampledAt") ? `${form.fieldId("sampledAt")}-error` : undefined}
-            className="mt-0.5 w-full rounded border border-line bg-white px-2 py-1 text-sm"
-          />
-          {form.errorOf("sampledAt") && (
-            <p id={`${form.fieldId("sampledAt")}-error`} className="mt-0.5 border-l-4 border-ink pl-1.5 text-xs font-semibold" data-field-error="">
-              {form.errorOf("sampledAt")}
-            </p>
-          )}
-        </div>
+        <LocalDateTimeField form={form} name="sampledAt" label={`Sampled at (${unit?.timeZone ?? "site time"})`} />
         <TextField form={form} name="samplePoint" label="Sample point" placeholder="e.g. fill panel whip 1" />
         <TextField form={form} name="fillBar" label="Fill pressure" unit="bar" numeric />
         <TextField form={form} name="laboratory" label="Laboratory" />
@@ -148,36 +130,8 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
         />
       </div>
       <TextField form={form} name="note" label="Note" />
-      <div>
-        <label htmlFor={`${form.id}-certificate`} className="block text-xs font-semibold text-muted">
-          Laboratory certificate (PDF or image, at most 20 MB)
-        </label>
-        <input
-          key={fileKey}
-          id={`${form.id}-certificate`}
-          name="certificate"
-          type="file"
-          accept={attachmentAccept}
-          onChange={(e) => setFile(e.target.files?.[0] ?? null)}
-          aria-invalid={form.errorOf("certificate" as keyof V & string) ? true : undefined}
-          aria-describedby={form.errorOf("certificate" as keyof V & string) ? `${form.id}-certificate-error` : undefined}
-          className="mt-0.5 text-sm"
-        />
-        {form.errorOf("certificate" as keyof V & string) && (
-          <p id={`${form.id}-certificate-error`} className="mt-0.5 border-l-4 border-ink pl-1.5 text-xs font-semibold" data-field-error="">
-            {form.errorOf("certificate" as keyof V & string)}
-          </p>
-        )}
-      </div>
-      {form.formError && (
-        <p role="alert" className="font-semibold">
-          {form.formError}
-        </p>
-      )}
-      {done && <p role="status">{done}</p>}
-      <button type="submit" disabled={form.pending} className="rounded border border-ink bg-ink px-3 py-1 text-sm font-semibold text-white disabled:opacity-50">
-        {form.pending ? "Saving…" : "Save test record"}
-      </button>
+      <FileField form={form} name="certificate" label="Laboratory certificate (PDF or image, at most 20 MB)" resetKey={fileKey} onFile={setFile} />
+      <SubmitRow pending={form.pending} formError={form.formError} done={done} label="Save test record" />
     </form>
   );
 }

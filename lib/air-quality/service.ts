@@ -69,8 +69,8 @@ export function recordAirTest(
   input: AirTestInput,
   actor: Actor,
   siteIds: number[] | null,
-  opts: { certificateAttachmentId?: number | null; now?: number; /** Runs in the record's transaction once the row exists (links an uploaded certificate); a throw stores nothing. */
-    attach?: (tx: Db, airTestId: number) => void } = {},
+  /** attach runs in the record's transaction once the row exists (links an uploaded certificate); a throw stores nothing. */
+  opts: { now?: number; attach?: (tx: Db, airTestId: number) => void } = {},
 ): RecordedTest {
   const now = opts.now ?? Date.now();
   const { unit, standard } = checkAirTest(db, input, siteIds);
@@ -96,7 +96,6 @@ export function recordAirTest(
         odourOk: input.odourOk,
         passed: verdict.passed,
         verdict,
-        certificateAttachmentId: opts.certificateAttachmentId ?? null,
         note: input.note,
         createdBy: actor.id,
         createdAt: now,

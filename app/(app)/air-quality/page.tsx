@@ -11,7 +11,7 @@ import { getDb } from "@/db/client";
 import { listSites } from "@/db/sites";
 import { airQualityOverview } from "@/lib/air-quality/service";
 import { pageUser } from "@/lib/auth/current-user";
-import { DO_NOT_USE_AIR } from "@/shared/air-quality-alarms";
+import { airAlarmCautions, DO_NOT_USE_AIR } from "@/shared/air-quality-alarms";
 import { airStandardLabels } from "@/shared/air-standards";
 import { localDate } from "@/shared/month";
 import { can } from "@/shared/roles";
@@ -72,7 +72,18 @@ export default async function Page() {
                       {r.lastTest ? (
                         <>
                           <PassFail passed={r.lastTest.passed} /> <span className="num">{localDate(r.lastTest.sampledAt, r.timeZone)}</span>
-                          {!r.lastTest.passed && <div className="text-xs font-semibold">{DO_NOT_USE_AIR}</div>}
+                          {!r.lastTest.passed && (
+                            <div className="text-xs">
+                              <p className="font-semibold">{DO_NOT_USE_AIR}</p>
+                              <ul className="list-disc pl-4 text-muted">
+                                {airAlarmCautions("air-test-failed")
+                                  .filter((c) => c !== DO_NOT_USE_AIR)
+                                  .map((c) => (
+                                    <li key={c}>{c}</li>
+                                  ))}
+                              </ul>
+                            </div>
+                          )}
                         </>
                       ) : (
                         <span className="text-muted">never tested</span>

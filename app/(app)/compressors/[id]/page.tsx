@@ -17,16 +17,19 @@ import type { CompressorDto } from "@/shared/compressor-schema";
 import { can } from "@/shared/roles";
 import { CompressorAirSection } from "@/components/air-quality/compressor-air-section";
 import { airQualityOverview } from "@/lib/air-quality/service";
-import { listAirTests } from "@/db/air-quality";
+import { listAirTests, ownRating } from "@/db/air-quality";
 import { localDate } from "@/shared/month";
 
-function AirQualityPart({ compressorId, siteIds }: { compressorId: number; siteIds: number[] | null }) {
+function AirQualityPart({ compressorId, siteIds, isAdmin }: { compressorId: number; siteIds: number[] | null; isAdmin: boolean }) {
   const db = getDb();
   const row = airQualityOverview(db, siteIds, Date.now(), compressorId)[0];
   if (!row) return null;
   const last = listAirTests(db, { compressorId, siteIds, limit: 1 })[0] ?? null;
   const due = row.nextDueAt != null ? `${localDate(row.nextDueAt, row.timeZone)}${row.overdueDays > 0 ? ` (overdue ${row.overdueDays} d)` : ""}` : "now";
-  return <CompressorAirSection cartridge={row.cartridge} lastTest={last} nextDueAt={due} timeZone={row.timeZone} />;
+  const override = isAdmin
+    ? { modelId: compressorId, modelName: "Override", backPressureBar: row.cartridge.backPressureBar, rating: ownRating(db, "compressor", compressorId) }
+    : undefined;
+  return <CompressorAirSection cartridge={row.cartridge} lastTest={last} nextDueAt={due} timeZone={row.timeZone} override={override} />;
 }
 
 export const dynamic = "force-dynamic";
@@ -34,14 +37,14 @@ export const metadata = { title: "Compressor" };
 
 type Props = { params: Promise<{ id: string }> };
 
-async function viewable(params: Props["params"]): Promise<CompressorDto & { mayViewAir: boolean; siteIds: number[] | null }> {
+async function viewable(params: Props["params"]): Promise<CompressorDto & { mayViewAir: boolean; isAdmin: boolean; siteIds: number[] | null }> {
   const user = await pageUser("compressors.view");
   const id = compressorIdSchema.safeParse((await params).id);
   if (!id.success) notFound();
   const compressor = getCompressor(getDb(), id.data);
   // Outside the person's sites reads exactly like a compressor that does not exist.
   if (!compressor || !inScope(user, compressor.siteId)) notFound();
-  return { ...compressor, mayViewAir: can(user.role, "airquality.view"), siteIds: user.siteIds };
+  return { ...compressor, mayViewAir: can(user.role, "airquality.view"), isAdmin: can(user.role, "admin.compressors"), siteIds: user.siteIds };
 }
 
 const DEFAULT_SIGNAL = "deliveryBar" as const;
@@ -74,7 +77,7 @@ export default async function CompressorPage({ params }: Props) {
           initialSignal={DEFAULT_SIGNAL}
           initialSpan={DEFAULT_SPAN}
         />
-        {compressor.mayViewAir && <AirQualityPart compressorId={compressor.id} siteIds={compressor.siteIds} />}
+        {compressor.mayViewAir && <AirQualityPart compressorId={compressor.id} siteIds={compressor.siteIds} isAdmin={compressor.isAdmin} />}
         <DeviceEvents compressorId={compressor.id} timeZone={compressor.timeZone} />
       </div>
     </HydrationBoundary>
