@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
-import { FileField, LocalDateTimeField, SubmitRow } from "./form-parts";
+import { FileField, LocalDateTimeField, SubmitRow, useFollowZone } from "./form-parts";
 import { postRecord } from "./post-record";
 import type { AirTestVerdict } from "@/shared/air-standards";
 import { airTestInputSchema, waterUnitLabels, waterUnits } from "@/shared/air-quality-schema";
@@ -78,6 +78,7 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
     }),
   });
   const unit = unitOf(form.values);
+  useFollowZone(form, "sampledAt", unit?.timeZone);
   return (
     <form
       ref={form.formRef}

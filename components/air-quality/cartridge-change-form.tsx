@@ -4,7 +4,7 @@ import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
-import { FileField, LocalDateTimeField, SubmitRow } from "./form-parts";
+import { FileField, LocalDateTimeField, SubmitRow, useFollowZone } from "./form-parts";
 import { postRecord } from "./post-record";
 import { cartridgeChangeInputSchema } from "@/shared/air-quality-schema";
 import type { UnitChoice } from "./air-test-form";
@@ -30,6 +30,7 @@ export function CartridgeChangeForm({ units }: { units: UnitChoice[] }) {
       note: v.note,
     }),
   });
+  useFollowZone(form, "changedAt", unitOf(form.values)?.timeZone);
   return (
     <form
       ref={form.formRef}

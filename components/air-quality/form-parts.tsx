@@ -1,11 +1,28 @@
 "use client";
 
+import { useEffect, useRef } from "react";
 import type { FormApi } from "@/components/admin/form-kit";
+import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
 import { attachmentAccept } from "@/shared/attachment-schema";
 
 type Values = Record<string, unknown>;
 
 const errorClass = "mt-0.5 border-l-4 border-ink pl-1.5 text-xs font-semibold";
+
+/** Keeps a site-time field on the same instant when another compressor (another site's time zone) is chosen. */
+export function useFollowZone<V extends Values>(form: FormApi<V>, name: keyof V & string, timeZone: string | undefined) {
+  const previous = useRef(timeZone);
+  const value = String(form.values[name] ?? "");
+  useEffect(() => {
+    const from = previous.current;
+    previous.current = timeZone;
+    if (!from || !timeZone || from === timeZone || !value) return;
+    const ms = zonedLocalToUtc(value, from);
+    if (ms !== null) form.set(name, utcToZonedLocal(ms, timeZone) as V[typeof name]);
+    // Only a change of zone moves the value; typing in the field does not.
+    // eslint-disable-next-line react-hooks/exhaustive-deps
+  }, [timeZone]);
+}
 
 /** A datetime-local input for a time in the site's zone, with its error beside it. */
 export function LocalDateTimeField<V extends Values>({ form, name, label }: { form: FormApi<V>; name: keyof V & string; label: string }) {
