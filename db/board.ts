@@ -3,6 +3,7 @@ import type { BoardCompressor, BoardData, BoardSite } from "@/shared/board";
 import type { LiveCompressor } from "@/shared/live";
 import { runStateFromCode } from "@/shared/telemetry";
 import type { Db } from "./client";
+import { serviceBadges, serviceDueList } from "./service";
 
 // Reads for the board and the compressor page: configuration joined with the last known state
 // (compressor_state, written by the ingester). Plain prepared statements: these run on every board load.
@@ -120,6 +121,7 @@ function prepared(db: Db) {
 export function loadBoard(db: Db, siteIds: number[] | null, now = Date.now()): BoardData {
   const scope = siteIds ? JSON.stringify(siteIds) : null;
   const s = prepared(db);
+  const badges = serviceBadges(serviceDueList(db, now, siteIds));
   const compressors: BoardCompressor[] = s.compressors.all({ scope }).map((r) => ({
     id: r.id,
     name: r.name,
@@ -130,6 +132,7 @@ export function loadBoard(db: Db, siteIds: number[] | null, now = Date.now()): B
     stopPressureBar: r.stopPressureBar,
     restartPressureBar: r.restartPressureBar,
     inService: r.inService === 1,
+    service: badges.get(r.id)?.status === "ok" ? null : (badges.get(r.id) ?? null),
     live: stateToLive(r.id, r),
     liveStamp: r.updatedAt ?? 0,
     cartridge: r.cartridgePct == null || r.cartridgeAdvisoryPct == null ? null : { usedPct: r.cartridgePct, advisoryPct: r.cartridgeAdvisoryPct },

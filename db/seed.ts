@@ -4,6 +4,7 @@ import { eq } from "drizzle-orm";
 import type { Db } from "./client";
 import { seedDemoContacts } from "./contacts";
 import { DEMO_PASSWORD, demoCompressors, demoEmail, demoModels, demoOrganisation, demoSites, demoUsers } from "./demo-scenario";
+import { seedDemoService } from "./demo-service";
 import { seedDemoThresholds } from "./demo-thresholds";
 import { compressorModels, compressors, settings, sites, users, userSites } from "./schema";
 
@@ -102,6 +103,7 @@ export function seedDemo(db: Db, knownSecrets: Map<string, string> = new Map(), 
   }, { behavior: "immediate" });
   seedDemoThresholds(db, now);
   seedDemoContacts(db, now);
+  seedDemoService(db, now);
 
   return { created, deviceSecrets };
 }

@@ -150,13 +150,11 @@ function units(db: Db, siteIds: readonly number[] | null, compressorId?: number)
 
 /** When each task was last done on each compressor: "compressorId|code" → time and hour meter. */
 export function lastDone(db: Db): Map<string, { at: number; hours: number | null }> {
+  // SQLite takes the bare column (the hour meter) from the row holding max(done_at).
   const rows = db.$client
     .prepare(
-      `SELECT compressor_id AS compressorId, code, done_at AS at, hour_meter_h AS hours FROM (
-         SELECT l.compressor_id, json_extract(j.value, '$.code') AS code, l.done_at, l.hour_meter_h,
-                row_number() OVER (PARTITION BY l.compressor_id, json_extract(j.value, '$.code') ORDER BY l.done_at DESC, l.id DESC) AS rn
-         FROM service_log l, json_each(l.tasks) j)
-       WHERE rn = 1`,
+      `SELECT l.compressor_id, json_extract(j.value, '$.code') AS code, max(l.done_at), l.hour_meter_h
+       FROM service_log l, json_each(l.tasks) j GROUP BY l.compressor_id, code`,
     )
     .raw()
     .all() as [number, string, number, number | null][];
@@ -247,13 +245,16 @@ export function computeDueList(inputs: DueInputs, now: number): ServiceDueDto[] 
   return out;
 }
 
+// Plain code-unit order: localeCompare costs a microsecond or more a call, thousands of times per list.
+const cmp = (a: string, b: string) => (a < b ? -1 : a > b ? 1 : 0);
+
 /** Overdue first, then soonest forecast (unknown last), then compressor and task. */
 export function byUrgency(a: ServiceDueDto, b: ServiceDueDto): number {
   return (
     statusRank[a.status] - statusRank[b.status] ||
     (a.forecastAt ?? Number.MAX_SAFE_INTEGER) - (b.forecastAt ?? Number.MAX_SAFE_INTEGER) ||
-    a.compressorName.localeCompare(b.compressorName) ||
-    a.name.localeCompare(b.name)
+    cmp(a.compressorName, b.compressorName) ||
+    cmp(a.name, b.name)
   );
 }
 
@@ -427,4 +428,14 @@ export function listServiceWindows(db: Db, q: { siteIds: readonly number[] | nul
     .orderBy(serviceWindows.startAt)
     .limit(q.limit)
     .all();
+}
+
+/**
+ * Entries recorded without an hour meter take the one the compressor reported at that time, once telemetry for it
+ * has arrived (a late gateway, the demo's backfill). One statement; entries with no telemetry before them stay empty.
+ */
+export function fillHourMetersFromTelemetry(db: Db): number {
+  const at = `(SELECT h.hour_meter_h FROM readings_1h h WHERE h.compressor_id = service_log.compressor_id AND h.bucket_ts <= service_log.done_at
+                 AND h.bucket_ts > service_log.done_at - 7 * 86400000 AND h.hour_meter_h IS NOT NULL ORDER BY h.bucket_ts DESC LIMIT 1)`;
+  return db.$client.prepare(`UPDATE service_log SET hour_meter_h = ${at} WHERE hour_meter_h IS NULL AND ${at} IS NOT NULL`).run().changes;
 }

@@ -1,4 +1,5 @@
 import { z } from "zod";
+import type { ServiceBadge } from "./service-schema";
 import type { CompressorDto } from "./compressor-schema";
 import { STALE_AFTER_MS, type LiveCompressor } from "./live";
 import type { RunState } from "./telemetry";
@@ -300,6 +301,8 @@ export type BoardCompressor = {
   stopPressureBar: number;
   restartPressureBar: number;
   inService: boolean;
+  /** Service tasks due or overdue (null: none, or no plan). */
+  service: ServiceBadge | null;
   live: LiveCompressor | null;
   /** Server time at which `live` was known to be current; the newer of two versions wins. */
   liveStamp: number;

@@ -1,4 +1,4 @@
-import { DAY_MS, localParts, startOfLocalDay } from "./month";
+import { DAY_MS, localParts, startOfLocalDay, utcOffsetMs } from "./month";
 
 // When a service task falls due, from the hour meter and from the calendar in the site's time zone, whichever first.
 //
@@ -17,7 +17,7 @@ export type DueInput = {
   everyMonths: number | null;
   /** When it was last done (or the counting started), ms UTC. */
   lastAt: number;
-  /** Hour meter when it was last done; null when not known (counts as 0). */
+  /** Hour meter when it was last done; null when not known (then only the calendar can be judged). */
   lastHours: number | null;
   /** Hour meter now; null when the compressor never reported one. */
   hourMeterH: number | null;
@@ -51,9 +51,27 @@ function daysInMonth(year: number, month: number): number {
   return new Date(Date.UTC(year, month, 0)).getUTCDate();
 }
 
+// Intl look-ups cost tens of microseconds each on a busy machine. A UTC day whose start and end have the same offset
+// (every day but the few with a daylight-saving change) has that offset throughout, so it is remembered per day.
+const dayOffsets = new Map<string, number | null>();
+function localDateOf(ts: number, timeZone: string): { year: number; month: number; day: number } {
+  const day = Math.floor(ts / DAY_MS);
+  const key = `${timeZone}|${day}`;
+  let off = dayOffsets.get(key);
+  if (off === undefined) {
+    if (dayOffsets.size > 50_000) dayOffsets.clear();
+    const a = utcOffsetMs(day * DAY_MS, timeZone);
+    off = a === utcOffsetMs((day + 1) * DAY_MS - 1000, timeZone) ? a : null;
+    dayOffsets.set(key, off);
+  }
+  if (off === null) return localParts(ts, timeZone);
+  const d = new Date(ts + off);
+  return { year: d.getUTCFullYear(), month: d.getUTCMonth() + 1, day: d.getUTCDate() };
+}
+
 /** The local date `months` after the local date of `ts` (day clamped to the month's length). */
 export function addLocalMonths(ts: number, months: number, timeZone: string): { year: number; month: number; day: number } {
-  const p = localParts(ts, timeZone);
+  const p = localDateOf(ts, timeZone);
   const index = p.year * 12 + (p.month - 1) + months;
   const year = Math.floor(index / 12);
   const month = (index % 12) + 1;
@@ -84,9 +102,9 @@ export function computeDue(i: DueInput): DueResult {
   let dueHours: number | null = null;
   let hoursLeft: number | null = null;
   let hoursForecast: number | null = null;
-  if (i.everyHours != null && i.everyHours > 0) {
-    dueHours = (i.lastHours ?? 0) + i.everyHours;
-    const meter = i.hourMeterH ?? i.lastHours ?? 0;
+  if (i.everyHours != null && i.everyHours > 0 && i.lastHours !== null) {
+    dueHours = i.lastHours + i.everyHours;
+    const meter = i.hourMeterH ?? i.lastHours;
     hoursLeft = dueHours - meter;
     if (hoursLeft <= 0) status = "overdue";
     else if (hoursLeft <= i.leadHours) status = "due";

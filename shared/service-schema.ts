@@ -161,3 +161,16 @@ export type ServiceWindowDto = {
   reason: string;
   createdAt: number;
 };
+
+export type ServiceOverviewDto = {
+  /** Server time of the answer. */
+  at: number;
+  sites: { id: number; name: string; timeZone: string }[];
+  compressors: { id: number; name: string; siteId: number; timeZone: string; tasks: { code: string; name: string }[] }[];
+  due: ServiceDueDto[];
+  log: ServiceLogDto[];
+  windows: ServiceWindowDto[];
+  lead: ServiceLead;
+  /** For editing plans: each model's tasks, and each compressor's effective tasks (switched-off ones included). */
+  plans: { models: { id: number; name: string; tasks: ServiceTaskDto[] }[]; compressors: Record<string, ServiceTaskDto[]> };
+};

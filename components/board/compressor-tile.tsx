@@ -11,6 +11,7 @@ import {
 import { tripCodeLabel } from "@/shared/trip-codes";
 import { pressureFromBar, pressureLabel, type UnitPreference } from "@/shared/units";
 import { AlarmBadges, type AlarmCounts } from "../alarms/alarm-badges";
+import { ServiceBadge } from "../service/service-badge";
 import { Band } from "./band";
 import { pressureParts, pressureShort, temperatureParts, type Quantity } from "./format";
 import { StateChip } from "./state-chip";
@@ -105,6 +106,7 @@ export const CompressorTile = memo(function CompressorTile({
           )}
         </div>
         <div className="flex h-[1.6em] min-w-[1.6em] shrink-0 items-center gap-[0.25em]" data-testid="alarm-slot">
+          <ServiceBadge badge={c.service} label={c.name} href={linkable ? `/service?compressor=${c.id}` : undefined} />
           <AlarmBadges counts={alarms} label={c.name} href={linkable ? `/alarms?compressor=${c.id}` : undefined} />
         </div>
       </header>

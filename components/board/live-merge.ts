@@ -51,7 +51,12 @@ function sameConfig(a: BoardData["compressors"][number], b: BoardData["compresso
     a.ratedPressureBar === b.ratedPressureBar &&
     a.stopPressureBar === b.stopPressureBar &&
     a.restartPressureBar === b.restartPressureBar &&
-    a.inService === b.inService
+    a.inService === b.inService &&
+    a.service?.status === b.service?.status &&
+    a.service?.overdue === b.service?.overdue &&
+    a.service?.due === b.service?.due &&
+    Math.round(a.cartridge?.usedPct ?? -1) === Math.round(b.cartridge?.usedPct ?? -1) &&
+    a.cartridge?.advisoryPct === b.cartridge?.advisoryPct
   );
 }
 

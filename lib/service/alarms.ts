@@ -1,5 +1,5 @@
 import type { Db } from "@/db/client";
-import { serviceDueList } from "@/db/service";
+import { fillHourMetersFromTelemetry, serviceDueList } from "@/db/service";
 import { compressors } from "@/db/schema";
 import { eq } from "drizzle-orm";
 import { syncConditionAlarms } from "@/lib/alarms/conditions";
@@ -23,6 +23,7 @@ export function dueDetail(d: ServiceDueDto): string {
 
 /** Sweeps every compressor (or one) and makes its service alarms match its tasks' status now. */
 export function syncServiceAlarms(db: Db, now = Date.now(), compressorId?: number): AlarmTransition[] {
+  if (compressorId === undefined) db.transaction(() => fillHourMetersFromTelemetry(db), { behavior: "immediate" });
   const list = serviceDueList(db, now, null, compressorId);
   const byUnit = new Map<number, ServiceDueDto[]>();
   const ids = db

@@ -2,9 +2,8 @@ import { Readable } from "node:stream";
 import type { Db } from "@/db/client";
 import { attachmentDto, findStoredDuplicate, getAttachment, insertAttachment, listAttachments } from "@/db/attachments";
 import { writeAudit } from "@/db/audit";
-import { AccessError, inScope, type CurrentUser } from "@/lib/auth/current-user";
 import { uploadRejections, type AttachmentDto, type AttachmentOwner, type UploadRejection } from "@/shared/attachment-schema";
-import { can, denialReason } from "@/shared/roles";
+import { can, denialReason, type Role } from "@/shared/roles";
 import type { ObjectStore } from "./object-store";
 import { attachmentOwners } from "./owners";
 import { receiveUpload } from "./upload";
@@ -12,9 +11,17 @@ import { receiveUpload } from "./upload";
 // Attaching, listing and reading files, with the owner's permission and site scope checked first every time.
 // Anything outside the person's sites answers like something that does not exist.
 
-type Who = Pick<CurrentUser, "id" | "name" | "email" | "role" | "siteIds">;
+// Kept free of the sign-in machinery (next-auth), so programs outside the web app can use it too.
+type Who = { id: number; name: string; email: string; role: Role; siteIds: number[] | null };
 
 export class AttachmentNotFound extends Error {}
+
+/** The person's role may not do this with the owner's kind of record (403, with the permission table's sentence). */
+export class AttachmentForbidden extends Error {
+  readonly status = 403;
+}
+
+const inScope = (user: Who, siteId: number) => user.siteIds === null || user.siteIds.includes(siteId);
 
 const rejectionStatus: Record<UploadRejection, number> = {
   empty: 400,
@@ -37,7 +44,7 @@ export type UploadResult =
 function locateFor(db: Db, user: Who, owner: AttachmentOwner, permission: "upload" | "view") {
   const spec = attachmentOwners[owner.ownerKind];
   const needed = permission === "upload" ? spec.uploadPermission : spec.viewPermission;
-  if (!can(user.role, needed)) throw new AccessError(403, denialReason(needed));
+  if (!can(user.role, needed)) throw new AttachmentForbidden(denialReason(needed));
   const where = spec.locate(db, owner.ownerId);
   if (!where || !inScope(user, where.siteId)) throw new AttachmentNotFound();
   return { spec, where };
@@ -129,7 +136,7 @@ export async function openAttachment(db: Db, store: ObjectStore, user: Who, id: 
   const row = getAttachment(db, id);
   if (!row || !(row.ownerKind in attachmentOwners)) throw new AttachmentNotFound();
   const spec = attachmentOwners[row.ownerKind as keyof typeof attachmentOwners];
-  if (!can(user.role, spec.viewPermission)) throw new AccessError(403, denialReason(spec.viewPermission));
+  if (!can(user.role, spec.viewPermission)) throw new AttachmentForbidden(denialReason(spec.viewPermission));
   if (!inScope(user, row.siteId) || row.status !== "stored" || !row.key) throw new AttachmentNotFound();
   const obj = await store.get(row.key);
   if (!obj) {

@@ -28,6 +28,7 @@ const tile = (id: number, l: LiveCompressor | null, liveStamp: number): BoardCom
   name: `C${id}`,
   siteId: 1,
   modelName: "M",
+  service: null,
   stages: 3,
   ratedPressureBar: 330,
   stopPressureBar: 300,
@@ -119,5 +120,13 @@ describe("mergeBoardData (a refetch meeting socket values)", () => {
     const cached = board(1_000, tile(1, live(1, 990), 995), tile(2, null, 0));
     const merged = mergeBoardData(cached, board(1_100, tile(3, null, 0)));
     expect(merged.compressors.map((c) => c.id)).toEqual([3]);
+  });
+});
+
+describe("service badge", () => {
+  it("a new service status on a fetch replaces the tile even when the live value is older", () => {
+    const old: BoardData = { at: 1, sites: [], compressors: [tile(1, null, 5)] };
+    const next: BoardData = { at: 2, sites: [], compressors: [{ ...tile(1, null, 4), service: { status: "overdue", overdue: 1, due: 0 } }] };
+    expect(mergeBoardData(old, next).compressors[0]!.service).toEqual({ status: "overdue", overdue: 1, due: 0 });
   });
 });

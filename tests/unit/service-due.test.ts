@@ -109,3 +109,10 @@ describe("whichever comes first", () => {
     expect(slow.forecastAt).toBe(at("2026-05-31T23:00:00Z"));
   });
 });
+
+describe("an hour meter not known at the last service", () => {
+  it("judges by the calendar only, rather than counting from zero", () => {
+    const r = computeDue({ ...base, everyHours: 500, everyMonths: 12, lastHours: null, hourMeterH: 3200, lastAt: at("2026-01-10T08:00:00Z"), now: at("2026-03-01T12:00:00Z") });
+    expect(r).toMatchObject({ status: "ok", dueHours: null, hoursLeft: null, dueDate: "2027-01-10" });
+  });
+});

@@ -2,7 +2,7 @@ import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
 import { errorJson, route } from "@/lib/api/route";
 import { requireUser } from "@/lib/auth/current-user";
-import { AttachmentNotFound, listOwnerAttachments, uploadAttachment } from "@/lib/storage/attachments";
+import { AttachmentForbidden, AttachmentNotFound, listOwnerAttachments, uploadAttachment } from "@/lib/storage/attachments";
 import { getObjectStore } from "@/lib/storage/object-store";
 import { attachmentOwnerSchema } from "@/shared/attachment-schema";
 
@@ -23,6 +23,7 @@ export const GET = route(async (request: Request) => {
     return NextResponse.json({ attachments: listOwnerAttachments(getDb(), user, owner) }, { headers: noStore });
   } catch (e) {
     if (e instanceof AttachmentNotFound) return errorJson(404, "No such record.");
+    if (e instanceof AttachmentForbidden) return errorJson(403, e.message);
     throw e;
   }
 });
@@ -36,6 +37,7 @@ export const POST = route(async (request: Request) => {
     return NextResponse.json(r, { status: r.status, headers: noStore });
   } catch (e) {
     if (e instanceof AttachmentNotFound) return errorJson(404, "No such record.");
+    if (e instanceof AttachmentForbidden) return errorJson(403, e.message);
     throw e;
   }
 });

@@ -11,10 +11,12 @@ import { loadLiveState } from "@/db/board";
 import { getDb } from "@/db/client";
 import { getCompressor } from "@/db/compressors";
 import { listDeviceEvents, readTrend } from "@/db/trends";
-import { inScope, pageUser } from "@/lib/auth/current-user";
+import { inScope, pageUser, type CurrentUser } from "@/lib/auth/current-user";
+import { CompressorService } from "@/components/service/compressor-service";
+import { listServiceLog, serviceDueList } from "@/db/service";
+import { can } from "@/shared/roles";
 import { compressorIdSchema, type CompressorDetail } from "@/shared/board";
 import type { CompressorDto } from "@/shared/compressor-schema";
-import { can } from "@/shared/roles";
 import { CompressorAirSection } from "@/components/air-quality/compressor-air-section";
 import { airQualityOverview } from "@/lib/air-quality/service";
 import { listAirTests, ownRating } from "@/db/air-quality";
@@ -37,22 +39,26 @@ export const metadata = { title: "Compressor" };
 
 type Props = { params: Promise<{ id: string }> };
 
-async function viewable(params: Props["params"]): Promise<CompressorDto & { mayViewAir: boolean; isAdmin: boolean; siteIds: number[] | null }> {
+async function viewable(params: Props["params"]): Promise<{ compressor: CompressorDto; user: CurrentUser }> {
   const user = await pageUser("compressors.view");
   const id = compressorIdSchema.safeParse((await params).id);
   if (!id.success) notFound();
   const compressor = getCompressor(getDb(), id.data);
   // Outside the person's sites reads exactly like a compressor that does not exist.
   if (!compressor || !inScope(user, compressor.siteId)) notFound();
-  return { ...compressor, mayViewAir: can(user.role, "airquality.view"), isAdmin: can(user.role, "admin.compressors"), siteIds: user.siteIds };
+  return { compressor, user };
 }
 
 const DEFAULT_SIGNAL = "deliveryBar" as const;
 const DEFAULT_SPAN = "6h" as const;
 
 export default async function CompressorPage({ params }: Props) {
-  const compressor = await viewable(params);
+  const { compressor, user } = await viewable(params);
   const db = getDb();
+  const now = Date.now();
+  const mayReadLog = can(user.role, "service.view");
+  const serviceDue = serviceDueList(db, now, user.siteIds, compressor.id);
+  const serviceLog = mayReadLog ? listServiceLog(db, { siteIds: user.siteIds, compressor: compressor.id, limit: 5 }) : null;
   const client = makeQueryClient();
   const detail: CompressorDetail = { at: Date.now(), compressor, ...loadLiveState(db, compressor.id) };
   await Promise.all([
@@ -77,7 +83,8 @@ export default async function CompressorPage({ params }: Props) {
           initialSignal={DEFAULT_SIGNAL}
           initialSpan={DEFAULT_SPAN}
         />
-        {compressor.mayViewAir && <AirQualityPart compressorId={compressor.id} siteIds={compressor.siteIds} isAdmin={compressor.isAdmin} />}
+        <CompressorService due={serviceDue} log={serviceLog} linkToService={mayReadLog} compressorId={compressor.id} />
+        {can(user.role, "airquality.view") && <AirQualityPart compressorId={compressor.id} siteIds={user.siteIds} isAdmin={can(user.role, "admin.compressors")} />}
         <DeviceEvents compressorId={compressor.id} timeZone={compressor.timeZone} />
       </div>
     </HydrationBoundary>

@@ -1,7 +1,7 @@
 import { getDb } from "@/db/client";
 import { errorJson, route } from "@/lib/api/route";
 import { requireUser } from "@/lib/auth/current-user";
-import { AttachmentNotFound, contentDisposition, openAttachment } from "@/lib/storage/attachments";
+import { AttachmentForbidden, AttachmentNotFound, contentDisposition, openAttachment } from "@/lib/storage/attachments";
 import { getObjectStore } from "@/lib/storage/object-store";
 import { attachmentIdSchema } from "@/shared/attachment-schema";
 
@@ -27,6 +27,7 @@ export const GET = route(async (request: Request, ctx: { params: Promise<{ id: s
     });
   } catch (e) {
     if (e instanceof AttachmentNotFound) return errorJson(404, "No such file.");
+    if (e instanceof AttachmentForbidden) return errorJson(403, e.message);
     throw e;
   }
 });
