@@ -52,6 +52,8 @@ type BoardRow = StateColumns & {
   restartPressureBar: number;
   bankVolumeL: number;
   inService: number;
+  cartridgePct: number | null;
+  cartridgeAdvisoryPct: number | null;
 };
 
 function trimNulls(values: (number | null)[]): (number | null)[] {
@@ -93,11 +95,12 @@ function prepared(db: Db) {
       compressors: db.$client.prepare(
         `SELECT c.id AS id, c.name AS name, c.site_id AS siteId, m.name AS modelName, m.stages AS stages,
                 m.rated_pressure_bar AS ratedPressureBar, c.stop_pressure_bar AS stopPressureBar,
-                c.restart_pressure_bar AS restartPressureBar, c.bank_volume_l AS bankVolumeL, c.in_service AS inService, ${stateSelect}
+                c.restart_pressure_bar AS restartPressureBar, c.bank_volume_l AS bankVolumeL, c.in_service AS inService, pu.used_pct AS cartridgePct, pu.advisory_pct AS cartridgeAdvisoryPct, ${stateSelect}
          FROM compressors c
          JOIN sites si ON si.id = c.site_id
          JOIN compressor_models m ON m.id = c.model_id
          LEFT JOIN compressor_state st ON st.compressor_id = c.id
+         LEFT JOIN purifier_usage pu ON pu.compressor_id = c.id
          WHERE $scope IS NULL OR c.site_id IN (SELECT value FROM json_each($scope))
          ORDER BY si.name, c.name`,
       ) as Statement<[{ scope: string | null }], BoardRow>,
@@ -134,6 +137,7 @@ export function loadBoard(db: Db, siteIds: number[] | null, now = Date.now()): B
     service: badges.get(r.id)?.status === "ok" ? null : (badges.get(r.id) ?? null),
     live: stateToLive(r.id, r),
     liveStamp: r.updatedAt ?? 0,
+    cartridge: r.cartridgePct == null || r.cartridgeAdvisoryPct == null ? null : { usedPct: r.cartridgePct, advisoryPct: r.cartridgeAdvisoryPct },
   }));
   return { at: now, sites: s.sites.all({ scope }), compressors };
 }

@@ -19,6 +19,7 @@ export const ROLLUP_SIGNALS = [
   ["oilBar", "oil_bar"],
   ["purifierC", "purifier_c"],
   ["intakeC", "intake_c"],
+  ["purifierBar", "purifier_bar"],
 ] as const satisfies readonly (readonly [keyof ReadingInput, string])[];
 
 const SIGNAL_COUNT = ROLLUP_SIGNALS.length;
@@ -45,6 +46,7 @@ const RAW_COLUMNS = [
   "starts",
   "trip_code",
   "implausible",
+  "purifier_bar",
 ] as const;
 
 /**
@@ -305,6 +307,7 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
           r.starts,
           r.tripCode,
           r.implausible ? JSON.stringify(r.implausible) : null,
+          r.purifierBar ?? null,
         );
         if (res.changes === 0) {
           if (selectSeqAt.get(r.compressorId, r.ts) === r.seq) duplicates++;

@@ -1,5 +1,6 @@
 import { deliveryMonthRows } from "./delivery";
 import type { DeliveryMonthRow } from "@/shared/delivery-health";
+import { airQualityReportSection } from "./air-quality-report";
 import type { Statement } from "better-sqlite3";
 import type { Priority } from "@/shared/alarm-rules";
 import { priorities } from "@/shared/alarm-rules";
@@ -777,6 +778,7 @@ export function buildMonthlyReport(db: Db, req: ReportRequest): MonthlyReport | 
     },
     alarmLoad: alarmLoadSites,
     delivery: monthDelivery(db, cms),
+    airQuality: airQualityReportSection(db, periods, resolved.compressors, now),
   };
 }
 

@@ -64,6 +64,8 @@ export const compressorModels = sqliteTable("compressor_models", {
   stages: integer("stages").notNull(),
   ratedDeliveryLpm: real("rated_delivery_lpm").notNull(),
   ratedPressureBar: real("rated_pressure_bar").notNull(),
+  /** Back-pressure (minimum-pressure) valve setting, bar gauge: the purifier's pressure when the device does not report it. */
+  backPressureBar: real("back_pressure_bar").notNull().default(150),
   createdAt: integer("created_at").notNull(),
 });
 
@@ -111,6 +113,8 @@ export const readings = sqliteTable(
     oilBar: real("oil_bar"),
     purifierC: real("purifier_c"),
     intakeC: real("intake_c"),
+    /** Optional: pressure at the purifier, bar gauge (older devices do not send it). */
+    purifierBar: real("purifier_bar"),
     runState: integer("run_state").notNull(),
     motorOn: integer("motor_on").notNull(),
     hourMeterH: real("hour_meter_h"),
@@ -207,6 +211,10 @@ function rollupColumns() {
     intakeCMax: real("intake_c_max"),
     intakeCSum: real("intake_c_sum").notNull().default(0),
     intakeCN: integer("intake_c_n").notNull().default(0),
+    purifierBarMin: real("purifier_bar_min"),
+    purifierBarMax: real("purifier_bar_max"),
+    purifierBarSum: real("purifier_bar_sum").notNull().default(0),
+    purifierBarN: integer("purifier_bar_n").notNull().default(0),
     /** Seconds of the bucket covered by readings (gaps longer than the store's max gap are not counted). */
     coveredS: real("covered_s").notNull().default(0),
     /** Seconds with the motor on. */
@@ -755,3 +763,107 @@ export type AttachmentRow = typeof attachments.$inferSelect;
 export type ServiceTaskRow = typeof serviceTasks.$inferSelect;
 export type ServiceLogRow = typeof serviceLog.$inferSelect;
 export type ServiceWindowRow = typeof serviceWindows.$inferSelect;
+
+// ---- Air quality: purifier cartridge ratings, changes and usage; breathing-air test records; per-site test settings ----
+
+/** Cartridge rating per model (the template) with optional per-compressor override. */
+export const purifierRatings = sqliteTable(
+  "purifier_ratings",
+  {
+    scopeType: text("scope_type", { enum: ["model", "compressor"] }).notNull(),
+    scopeId: integer("scope_id").notNull(),
+    /** water-g: grams of water; air-m3: free air the supplier rates it for at refBar / refC. */
+    kind: text("kind", { enum: ["water-g", "air-m3"] }).notNull(),
+    value: real("value").notNull(),
+    refBar: real("ref_bar").notNull(),
+    refC: real("ref_c").notNull(),
+    /** Use (%) at which the advisory is raised; 100 % raises the warning. */
+    advisoryPct: real("advisory_pct").notNull().default(80),
+    updatedAt: integer("updated_at").notNull(),
+    updatedBy: integer("updated_by"),
+  },
+  (t) => [primaryKey({ columns: [t.scopeType, t.scopeId] })],
+);
+
+export const cartridgeChanges = sqliteTable(
+  "cartridge_changes",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    compressorId: integer("compressor_id")
+      .notNull()
+      .references(() => compressors.id),
+    siteId: integer("site_id").notNull(),
+    changedAt: integer("changed_at").notNull(),
+    hourMeterH: real("hour_meter_h").notNull(),
+    lot: text("lot").notNull(),
+    note: text("note").notNull().default(""),
+    /** Optional photo, a row of the generic attachments table once file storage exists. */
+    photoAttachmentId: integer("photo_attachment_id"),
+    createdBy: integer("created_by").notNull(),
+    createdAt: integer("created_at").notNull(),
+  },
+  (t) => [index("cartridge_changes_compressor_idx").on(t.compressorId, t.changedAt), index("cartridge_changes_site_idx").on(t.siteId, t.changedAt)],
+);
+
+/** Water taken up since the last change, summed over complete 1-hour rollups before throughTs (incremental). */
+export const purifierUsage = sqliteTable("purifier_usage", {
+  compressorId: integer("compressor_id").primaryKey(),
+  sinceTs: integer("since_ts").notNull(),
+  throughTs: integer("through_ts").notNull(),
+  waterG: real("water_g").notNull().default(0),
+  runS: real("run_s").notNull().default(0),
+  freeAirM3: real("free_air_m3").notNull().default(0),
+  /** Fingerprint of the rating and settings the sums were made with; a change recomputes. */
+  specKey: text("spec_key").notNull().default(""),
+  /** Last computed use, % of capacity, and the advisory level then in force (for the board's badge). */
+  usedPct: real("used_pct"),
+  advisoryPct: real("advisory_pct"),
+  updatedAt: integer("updated_at").notNull(),
+});
+
+export const airTests = sqliteTable(
+  "air_tests",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    compressorId: integer("compressor_id")
+      .notNull()
+      .references(() => compressors.id),
+    siteId: integer("site_id").notNull(),
+    sampledAt: integer("sampled_at").notNull(),
+    samplePoint: text("sample_point").notNull(),
+    fillBar: real("fill_bar").notNull(),
+    laboratory: text("laboratory").notNull(),
+    certificateNo: text("certificate_no").notNull(),
+    standard: text("standard", { enum: ["en12021", "cga-d", "cga-e", "nfpa1989"] }).notNull(),
+    oxygenPct: real("oxygen_pct"),
+    co2Ppm: real("co2_ppm"),
+    coPpm: real("co_ppm"),
+    oilMgM3: real("oil_mg_m3"),
+    waterValue: real("water_value"),
+    waterUnit: text("water_unit", { enum: ["mg/m3", "ppmv", "dewpoint"] }).notNull(),
+    hydrocarbonsPpm: real("hydrocarbons_ppm"),
+    odourOk: integer("odour_ok", { mode: "boolean" }),
+    passed: integer("passed", { mode: "boolean" }).notNull(),
+    /** The per-analyte verdict as judged when recorded (limits and sources included). */
+    verdict: text("verdict", { mode: "json" }).$type<unknown>().notNull(),
+    certificateAttachmentId: integer("certificate_attachment_id"),
+    note: text("note").notNull().default(""),
+    createdBy: integer("created_by").notNull(),
+    createdAt: integer("created_at").notNull(),
+  },
+  (t) => [index("air_tests_compressor_idx").on(t.compressorId, t.sampledAt), index("air_tests_site_idx").on(t.siteId, t.sampledAt)],
+);
+
+export const siteAirSettings = sqliteTable("site_air_settings", {
+  siteId: integer("site_id")
+    .primaryKey()
+    .references(() => sites.id, { onDelete: "cascade" }),
+  standard: text("standard", { enum: ["en12021", "cga-d", "cga-e", "nfpa1989"] }).notNull().default("en12021"),
+  intervalDays: integer("interval_days").notNull().default(91),
+  updatedAt: integer("updated_at").notNull(),
+  updatedBy: integer("updated_by"),
+});
+
+export type PurifierRatingRow = typeof purifierRatings.$inferSelect;
+export type CartridgeChangeRow = typeof cartridgeChanges.$inferSelect;
+export type AirTestRow = typeof airTests.$inferSelect;

@@ -3,6 +3,8 @@
  * raised and cleared through lib/alarms/conditions.ts along the same ISA-18.2 lifecycle as limit alarms. Their key is
  * "cond:<family>:<subject>"; each family names its title here, where screens, e-mails and the event log read it.
  */
+import { AIR_ALARM_FAMILY, airAlarmTitles, isAirAlarmKind } from "./air-quality-alarms";
+
 export const CONDITION_KEY_PREFIX = "cond:";
 
 type Family = { title: (subject: string) => string };
@@ -13,6 +15,7 @@ export const conditionFamilies: Record<string, Family> = {
   "service-due": { title: (s) => `Service due: ${words(s)}` },
   "service-overdue": { title: (s) => `Service overdue: ${words(s)}` },
   "delivery-low": { title: () => "Delivery below rated" },
+  [AIR_ALARM_FAMILY]: { title: (s) => (isAirAlarmKind(s) ? airAlarmTitles[s] : `Air quality: ${words(s)}`) },
 };
 
 const FAMILY_RE = /^[a-z][a-z0-9-]{0,39}$/;

@@ -1,7 +1,7 @@
 import { z } from "zod";
 
 /** Records that can own attachments. Another area adds its kind here and its owner in lib/storage/owners.ts. */
-export const attachmentOwnerKinds = ["service_log"] as const;
+export const attachmentOwnerKinds = ["service_log", "air_test", "cartridge_change"] as const;
 export const attachmentOwnerKindSchema = z.enum(attachmentOwnerKinds);
 export type AttachmentOwnerKind = z.infer<typeof attachmentOwnerKindSchema>;
 

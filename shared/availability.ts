@@ -1,4 +1,5 @@
 import type { DeliveryMonthRow } from "./delivery-health";
+import type { AirQualityReportSite } from "./air-quality-report";
 import { z } from "zod";
 import type { AlarmLoadFigures, BenchmarkResult } from "./alarm-load";
 import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
@@ -538,6 +539,8 @@ export type MonthlyReport = {
   alarmLoad: AlarmLoadSite[];
   /** Free air delivered per fill, median per compressor (shared/delivery-health.ts). */
   delivery: DeliveryMonthRow[];
+  /** Air-quality tests and cartridge changes per site (shared/air-quality-report.ts). */
+  airQuality?: AirQualityReportSite[];
 };
 
 export type ComparisonRow = {

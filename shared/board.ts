@@ -326,6 +326,8 @@ export type BoardCompressor = {
   live: LiveCompressor | null;
   /** Server time at which `live` was known to be current; the newer of two versions wins. */
   liveStamp: number;
+  /** Purifier cartridge use, % of its water capacity, and the advisory level, as last computed (absent when unrated). */
+  cartridge?: { usedPct: number; advisoryPct: number } | null;
 };
 
 export type BoardData = {

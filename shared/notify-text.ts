@@ -1,6 +1,7 @@
 import type { AlarmState } from "./alarm-lifecycle";
 import { signalInfo, type AlarmSignal, type Priority } from "./alarm-rules";
 import { parseLimitKey } from "./alarm-text";
+import { airAlarmCautions, airAlarmKindOf } from "./air-quality-alarms";
 import { cautions, SAFETY_NOTICE } from "./safety";
 import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
 import { formatPressure, formatTemperature, type UnitPreference } from "./units";
@@ -64,6 +65,8 @@ export function cautionsFor(a: Pick<NoticeAlarm, "key" | "signal" | "tripCode">)
   if (signal === "purifierC") out.add(cautions.spentCartridge);
   if (signal === "oilBar") out.add(cautions.oilCarryOver);
   if (signal === "deliveryBar" && dir === "high") out.add(cautions.cylinderFill);
+  const airKind = airAlarmKindOf(a.key);
+  if (airKind) for (const c of airAlarmCautions(airKind)) out.add(c);
   if (a.key === "trip") {
     const info = tripCodeInfo(a.tripCode);
     if (info?.category === "temperature") out.add(cautions.hotStage);

@@ -38,6 +38,8 @@ export const telemetrySchema = z.strictObject({
   oilBar: optionalIn(-1, 30),
   purifierC: optionalIn(-50, 150),
   intakeC: optionalIn(-50, 80),
+  /** Optional (older devices omit it): pressure at the purifier, bar gauge. */
+  purifierBar: optionalIn(-1, 700),
   hourMeterH: finiteIn(0, 1_000_000),
   starts: z.number().int().min(0).max(1_000_000_000),
   tripCode: z.number().int().min(0).max(65_535).nullable().optional(),
@@ -100,6 +102,8 @@ export type ReadingInput = {
   oilBar: number | null;
   purifierC: number | null;
   intakeC: number | null;
+  /** Optional so that producers written before it existed still type-check. */
+  purifierBar?: number | null;
   runState: number;
   motorOn: number;
   hourMeterH: number | null;
@@ -128,6 +132,7 @@ export function telemetryToReading(compressorId: number, t: Telemetry): ReadingI
     oilBar: t.oilBar ?? null,
     purifierC: t.purifierC ?? null,
     intakeC: t.intakeC ?? null,
+    purifierBar: t.purifierBar ?? null,
     runState: runStateCode[t.runState],
     motorOn: t.motorOn ? 1 : 0,
     hourMeterH: t.hourMeterH,

@@ -16,6 +16,18 @@ import { ServiceBadge } from "../service/service-badge";
 import { Band } from "./band";
 import { pressureParts, pressureShort, temperatureParts, type Quantity } from "./format";
 import { StateChip } from "./state-chip";
+import { PriorityShape } from "../alarms/priority-mark";
+
+/** Near the end of the purifier cartridge: shape + word + number; warning at 100 %, advisory before. */
+function CartridgeBadge({ usedPct }: { usedPct: number }) {
+  const spent = usedPct >= 100;
+  return (
+    <p className="flex items-center gap-[0.35em] text-[0.8em] font-semibold text-ink" data-testid="cartridge-badge">
+      <PriorityShape priority={spent ? "warning" : "advisory"} />
+      {spent ? "Cartridge spent" : "Cartridge near end"} <span className="num">{Math.round(usedPct)} %</span>
+    </p>
+  );
+}
 
 function Figure({ label, q, current, testId }: { label: string; q: Quantity; current: boolean; testId: string }) {
   return (
@@ -99,6 +111,7 @@ export const CompressorTile = memo(function CompressorTile({
           <AlarmBadges counts={alarms} label={c.name} href={linkable ? `/alarms?compressor=${c.id}` : undefined} />
         </div>
       </header>
+      {c.cartridge && c.cartridge.usedPct >= c.cartridge.advisoryPct && <CartridgeBadge usedPct={c.cartridge.usedPct} />}
 
       <div className="flex items-center gap-[0.5em]">
         <StateChip condition={condition} tripLabel={tripLabel || undefined} />

@@ -54,7 +54,9 @@ function sameConfig(a: BoardData["compressors"][number], b: BoardData["compresso
     a.inService === b.inService &&
     a.service?.status === b.service?.status &&
     a.service?.overdue === b.service?.overdue &&
-    a.service?.due === b.service?.due
+    a.service?.due === b.service?.due &&
+    Math.round(a.cartridge?.usedPct ?? -1) === Math.round(b.cartridge?.usedPct ?? -1) &&
+    a.cartridge?.advisoryPct === b.cartridge?.advisoryPct
   );
 }
 

@@ -1,3 +1,4 @@
+import { AirQualityReportSection } from "./air-quality-section";
 import { alarmBenchmarks, priorityLevel } from "@/shared/alarm-load";
 import {
   formatAvailability,
@@ -342,6 +343,7 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
         <p className="text-[8pt]">{DELIVERY_NOTE}</p>
         <DeliveryTable rows={report.delivery} compact />
       </section>
+      <AirQualityReportSection sites={report.airQuality} print />
 
       {comparison ? (
         <section className="space-y-1">

@@ -1,5 +1,6 @@
 "use client";
 
+import { AirQualityReportSection } from "./air-quality-section";
 import { useQuery } from "@tanstack/react-query";
 import { useRouter } from "next/navigation";
 import { useId } from "react";
@@ -227,6 +228,7 @@ function ReportBody({ report, dim }: { report: MonthlyReport; dim: boolean }) {
           </div>
         ))}
       </section>
+      <AirQualityReportSection sites={report.airQuality} />
     </div>
   );
 }

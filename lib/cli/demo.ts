@@ -1,3 +1,4 @@
+import { seedDemoAirQuality } from "@/lib/air-quality/demo-seed";
 import fs from "node:fs";
 import path from "node:path";
 import { parseArgs } from "node:util";
@@ -38,6 +39,7 @@ const db = openDatabase();
 runMigrations(db);
 const devicesFile = path.join(dataDir(), "demo-devices.json");
 const seeded = seedDemo(db, readDeviceSecrets(devicesFile));
+seedDemoAirQuality(db);
 writeDemoDevices(db, devicesFile, seeded.deviceSecrets);
 db.$client.close();
 console.log(`[airkeep] database ${databasePath()} migrated; demo data: ${JSON.stringify(seeded.created)}`);

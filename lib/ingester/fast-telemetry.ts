@@ -16,6 +16,7 @@ const KEYS = new Set([
   "oilBar",
   "purifierC",
   "intakeC",
+  "purifierBar",
   "hourMeterH",
   "starts",
   "tripCode",
@@ -55,6 +56,7 @@ export function isTelemetryFast(o: unknown): o is Telemetry {
     optionalInRange(r.oilBar, -1, 30) &&
     optionalInRange(r.purifierC, -50, 150) &&
     optionalInRange(r.intakeC, -50, 80) &&
+    optionalInRange(r.purifierBar, -1, 700) &&
     inRange(r.hourMeterH, 0, 1_000_000) &&
     intInRange(r.starts, 0, 1_000_000_000) &&
     (r.tripCode === undefined || r.tripCode === null || intInRange(r.tripCode, 0, 65_535))

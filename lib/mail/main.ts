@@ -2,6 +2,7 @@ import { openDatabase } from "@/db/client";
 import { notifyConfigFromEnv } from "@/lib/notify/config";
 import { startNotifier } from "@/lib/notify/notifier";
 import { queueMonthlyReportMails } from "@/lib/reports/monthly-mail";
+import { runAirQualityWatch } from "@/lib/air-quality/service";
 import { mailConfigFromEnv } from "./config";
 import { mailboxProbe, startOutboxSender } from "./outbox";
 import { startSmtpFake, type SmtpFake } from "./smtp-fake";
@@ -63,6 +64,19 @@ function queueReports() {
 queueReports();
 const reportTimer = setInterval(queueReports, REPORT_CHECK_MS);
 
+// Overdue air tests and cartridge use raise their alarms here (the notifier then mails them like any other).
+const AIR_WATCH_MS = 60_000;
+function watchAirQuality() {
+  try {
+    const changes = runAirQualityWatch(db, Date.now());
+    if (changes.length) console.log(`[mail] air quality: ${changes.map((c) => `${c.action} ${c.kind}`).join(", ")}`);
+  } catch (e) {
+    console.error(`[mail] air-quality watch failed: ${(e as Error).message}`);
+  }
+}
+watchAirQuality();
+const airTimer = setInterval(watchAirQuality, AIR_WATCH_MS);
+
 let stopping = false;
 async function stop(signal: string) {
   if (stopping) return;
@@ -72,6 +86,7 @@ async function stop(signal: string) {
   try {
     notifier.close();
     clearInterval(reportTimer);
+    clearInterval(airTimer);
     await sender.close();
     await fake?.close();
     db.$client.close();

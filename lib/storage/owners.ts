@@ -1,6 +1,6 @@
 import { eq } from "drizzle-orm";
 import type { Db } from "@/db/client";
-import { serviceLog } from "@/db/schema";
+import { airTests, cartridgeChanges, serviceLog } from "@/db/schema";
 import type { AttachmentOwnerKind } from "@/shared/attachment-schema";
 import type { Permission } from "@/shared/roles";
 
@@ -26,5 +26,20 @@ export const attachmentOwners: Record<AttachmentOwnerKind, AttachmentOwnerSpec> 
     viewPermission: "service.view",
     locate: (db, id) =>
       db.select({ compressorId: serviceLog.compressorId, siteId: serviceLog.siteId }).from(serviceLog).where(eq(serviceLog.id, id)).get() ?? null,
+  },
+  air_test: {
+    label: "air test",
+    eventKind: "air-test",
+    uploadPermission: "airquality.record",
+    viewPermission: "airquality.view",
+    locate: (db, id) => db.select({ compressorId: airTests.compressorId, siteId: airTests.siteId }).from(airTests).where(eq(airTests.id, id)).get() ?? null,
+  },
+  cartridge_change: {
+    label: "cartridge change",
+    eventKind: "service",
+    uploadPermission: "airquality.record",
+    viewPermission: "airquality.view",
+    locate: (db, id) =>
+      db.select({ compressorId: cartridgeChanges.compressorId, siteId: cartridgeChanges.siteId }).from(cartridgeChanges).where(eq(cartridgeChanges.id, id)).get() ?? null,
   },
 };

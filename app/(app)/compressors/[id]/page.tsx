@@ -20,6 +20,22 @@ import { listServiceLog, serviceDueList } from "@/db/service";
 import { can } from "@/shared/roles";
 import { compressorIdSchema, type CompressorDetail } from "@/shared/board";
 import type { CompressorDto } from "@/shared/compressor-schema";
+import { CompressorAirSection } from "@/components/air-quality/compressor-air-section";
+import { airQualityOverview } from "@/lib/air-quality/service";
+import { listAirTests, ownRating } from "@/db/air-quality";
+import { localDate } from "@/shared/month";
+
+function AirQualityPart({ compressorId, siteIds, isAdmin }: { compressorId: number; siteIds: number[] | null; isAdmin: boolean }) {
+  const db = getDb();
+  const row = airQualityOverview(db, siteIds, Date.now(), compressorId)[0];
+  if (!row) return null;
+  const last = listAirTests(db, { compressorId, siteIds, limit: 1 })[0] ?? null;
+  const due = row.nextDueAt != null ? `${localDate(row.nextDueAt, row.timeZone)}${row.overdueDays > 0 ? ` (overdue ${row.overdueDays} d)` : ""}` : "now";
+  const override = isAdmin
+    ? { modelId: compressorId, modelName: "Override", backPressureBar: row.cartridge.backPressureBar, rating: ownRating(db, "compressor", compressorId) }
+    : undefined;
+  return <CompressorAirSection cartridge={row.cartridge} lastTest={last} nextDueAt={due} timeZone={row.timeZone} override={override} />;
+}
 
 export const dynamic = "force-dynamic";
 
@@ -77,6 +93,7 @@ export default async function CompressorPage({ params }: Props) {
         />
         <DeliveryHealth compressorId={compressor.id} timeZone={compressor.timeZone} />
         <CompressorService due={serviceDue} log={serviceLog} linkToService={mayReadLog} compressorId={compressor.id} />
+        {can(user.role, "airquality.view") && <AirQualityPart compressorId={compressor.id} siteIds={user.siteIds} isAdmin={can(user.role, "admin.compressors")} />}
         <DeviceEvents compressorId={compressor.id} timeZone={compressor.timeZone} />
       </div>
     </HydrationBoundary>
