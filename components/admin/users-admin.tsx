@@ -10,6 +10,7 @@ import type { SiteDto } from "@/shared/site-schema";
 import { userInviteSchema, userUpdateSchema, type UserDto } from "@/shared/user-schema";
 import {
   buttonClass,
+  CheckboxField,
   CheckboxGroupField,
   FormActions,
   FormAlert,
@@ -22,7 +23,7 @@ import {
 import { useAdminRefresh } from "./use-admin-refresh";
 
 const roleOptions = roles.map((r) => ({ value: r, label: roleLabels[r] }));
-const scopeHint = "Leave every box clear for access to all sites.";
+const scopeHint = "The sites this person sees when Every site is not ticked.";
 const lastAdminText = "The last enabled administrator must stay an enabled administrator.";
 
 type Panel = { kind: "invite" } | { kind: "edit"; user: UserDto } | null;
@@ -43,14 +44,14 @@ export function UsersAdmin({ currentUserId }: { currentUserId: number }) {
   const enabledAdmins = list.filter((u) => u.role === "admin" && !u.disabled).length;
   const isLastAdmin = (u: UserDto) => u.role === "admin" && !u.disabled && enabledAdmins <= 1;
   const scopeText = (u: UserDto) =>
-    u.siteIds.length ? u.siteIds.map((id) => siteNames.get(id) ?? `#${id}`).join(", ") : "All sites";
+    u.allSites ? "All sites" : u.siteIds.length ? u.siteIds.map((id) => siteNames.get(id) ?? `#${id}`).join(", ") : "No site";
 
   async function setDisabled(u: UserDto, disabled: boolean) {
     setBusyId(u.id);
     setRowError(null);
     setStatus(null);
     try {
-      const result = await updateUser({ id: u.id, role: u.role, siteIds: u.siteIds, disabled });
+      const result = await updateUser({ id: u.id, role: u.role, allSites: u.allSites, siteIds: u.siteIds, disabled });
       if (!result.ok) setRowError(result.error);
       else
         setStatus(
@@ -236,7 +237,7 @@ function InviteUserForm({
 }) {
   const form = useSchemaForm({
     schema: userInviteSchema,
-    initial: { email: "", name: "", role: "viewer" as Role, siteIds: [] as number[], password: "" },
+    initial: { email: "", name: "", role: "viewer" as Role, allSites: true, siteIds: [] as number[], password: "" },
   });
   const [showPassword, setShowPassword] = useState(false);
   return (
@@ -280,11 +281,19 @@ function InviteUserForm({
             </button>
           </div>
         </div>
+        <CheckboxField
+          form={form}
+          name="allSites"
+          label="Every site (also sites added later)"
+          hint="Administrators always see every site."
+          className="md:col-span-2"
+        />
         <CheckboxGroupField
           form={form}
           name="siteIds"
           label="Site scope"
           hint={scopeHint}
+          disabled={Boolean(form.values.allSites)}
           options={siteOptions(sites)}
           className="md:col-span-2"
         />
@@ -312,8 +321,8 @@ function EditUserForm({
 }) {
   const form = useSchemaForm({
     schema: userUpdateSchema,
-    initial: { role: user.role as Role, siteIds: user.siteIds },
-    toInput: (v) => ({ id: user.id, role: v.role, siteIds: v.siteIds, disabled: user.disabled }),
+    initial: { role: user.role as Role, allSites: user.allSites, siteIds: user.siteIds },
+    toInput: (v) => ({ id: user.id, role: v.role, allSites: v.allSites, siteIds: v.allSites ? [] : v.siteIds, disabled: user.disabled }),
     check: (v) => (lastAdmin && v.role !== "admin" ? { role: [lastAdminText] } : {}),
   });
   return (
@@ -333,11 +342,19 @@ function EditUserForm({
         <p className="self-end text-sm text-muted">
           {user.name} · {user.disabled ? "disabled" : "enabled"}
         </p>
+        <CheckboxField
+          form={form}
+          name="allSites"
+          label="Every site (also sites added later)"
+          hint="Administrators always see every site."
+          className="md:col-span-2"
+        />
         <CheckboxGroupField
           form={form}
           name="siteIds"
           label="Site scope"
           hint={scopeHint}
+          disabled={Boolean(form.values.allSites)}
           options={siteOptions(sites)}
           className="md:col-span-2"
         />

@@ -3,7 +3,6 @@ import { bundleNodeProgram, programFlags } from "./node-bundle";
 import { runJob, startProcess } from "./processes";
 
 const tsx = path.resolve("node_modules/.bin/tsx");
-const next = path.resolve("node_modules/next/dist/bin/next");
 
 export type ServiceOptions = {
   /** Publish the demo fleet; first write the missing history (backfillDays) while everything else already runs. */
@@ -33,7 +32,7 @@ export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions
       ? "Mail       alarm e-mail via SMTP_URL"
       : `Mail       smtp://127.0.0.1:${env.SMTP_PORT ?? "2525"} (SMTP fake; read it at /admin/mailbox)`,
   );
-  startProcess("web", process.execPath, [next, "start", "-p", env.PORT ?? "3000", "-H", env.HOST ?? "127.0.0.1"], env);
+  startProcess("web", process.execPath, await program("web"), { ...env, NODE_ENV: "production" });
 
   if (opts.simulator) {
     const days = opts.backfillDays ?? 0;

@@ -26,7 +26,7 @@ beforeAll(async () => {
   runMigrations(db);
   const now = Date.now();
   const user = db.$client.prepare(
-    "INSERT INTO users (email, name, password_hash, role, created_at, updated_at) VALUES (?, ?, '-', 'supervisor', ?, ?)",
+    "INSERT INTO users (email, name, password_hash, role, all_sites, created_at, updated_at) VALUES (?, ?, '-', 'supervisor', 1, ?, ?)",
   );
   user.run("ana@airkeep.demo", "Ana", now, now);
   user.run("ben@airkeep.demo", "Ben", now, now);

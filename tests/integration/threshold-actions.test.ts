@@ -32,7 +32,7 @@ beforeAll(() => {
   for (const role of ["viewer", "supervisor", "technician", "engineer", "admin"] as Role[]) {
     const id = Number(
       db.$client
-        .prepare("INSERT INTO users (email, name, password_hash, role, created_at, updated_at) VALUES (?, ?, 'x', ?, 0, 0)")
+        .prepare("INSERT INTO users (email, name, password_hash, role, all_sites, created_at, updated_at) VALUES (?, ?, 'x', ?, 1, 0, 0)")
         .run(`${role}@airkeep.test`, `A ${role}`, role).lastInsertRowid,
     );
     createSession(db, { id: `sid-${role}`, userId: id, ip: "192.0.2.10" });
