@@ -3,6 +3,9 @@
 
 export const DEFAULT_AFTER_SIGN_IN = "/board";
 
+/** Request header proxy.ts sets to a page's path and query, so a sign-in asked for by the page can return there. */
+export const PAGE_PATH_HEADER = "x-airkeep-page";
+
 // Any syntactically valid origin will do when the caller does not know its own: only relative paths can match it.
 const PLACEHOLDER_ORIGIN = "http://airkeep.invalid";
 

@@ -2,7 +2,7 @@ import { getServerSession } from "next-auth";
 import { headers } from "next/headers";
 import { forbidden, redirect } from "next/navigation";
 import { getDb } from "@/db/client";
-import { signInUrl } from "@/shared/callback-url";
+import { PAGE_PATH_HEADER, signInUrl } from "@/shared/callback-url";
 import { can, denialReason, type Permission } from "@/shared/roles";
 import { authOptions } from "./options";
 import { resolveSession, type CurrentUser } from "./session-check";
@@ -35,9 +35,6 @@ export async function requirePermission(permission: Permission): Promise<Current
   if (!can(user.role, permission)) throw new AccessError(403, denialReason(permission));
   return user;
 }
-
-/** Request header proxy.ts sets to the page's path and query, so sign-in can return there. */
-export const PAGE_PATH_HEADER = "x-airkeep-page";
 
 /** For server components: redirects to sign-in (and back to this page afterwards), or renders the 403 page. */
 export async function pageUser(permission?: Permission): Promise<CurrentUser> {
