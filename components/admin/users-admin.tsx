@@ -18,6 +18,7 @@ import {
   SelectField,
   StatusLine,
   TextField,
+  type FormApi,
   useSchemaForm,
 } from "./form-kit";
 import { useAdminRefresh } from "./use-admin-refresh";
@@ -216,6 +217,30 @@ export function UsersAdmin({ currentUserId }: { currentUserId: number }) {
   );
 }
 
+/** "Every site", or the sites ticked below it (an empty list is no site). */
+function SiteScopeFields<V extends { allSites: boolean; siteIds: number[] }>({ form, sites }: { form: FormApi<V>; sites: SiteDto[] }) {
+  return (
+    <>
+      <CheckboxField
+        form={form}
+        name="allSites"
+        label="Every site (also sites added later)"
+        hint="Administrators always see every site."
+        className="md:col-span-2"
+      />
+      <CheckboxGroupField
+        form={form}
+        name="siteIds"
+        label="Site scope"
+        hint={scopeHint}
+        disabled={Boolean(form.values.allSites)}
+        options={siteOptions(sites)}
+        className="md:col-span-2"
+      />
+    </>
+  );
+}
+
 function siteOptions(sites: SiteDto[]) {
   return sites.map((s) => ({ value: s.id, label: `${s.name} (${s.code})` }));
 }
@@ -281,22 +306,7 @@ function InviteUserForm({
             </button>
           </div>
         </div>
-        <CheckboxField
-          form={form}
-          name="allSites"
-          label="Every site (also sites added later)"
-          hint="Administrators always see every site."
-          className="md:col-span-2"
-        />
-        <CheckboxGroupField
-          form={form}
-          name="siteIds"
-          label="Site scope"
-          hint={scopeHint}
-          disabled={Boolean(form.values.allSites)}
-          options={siteOptions(sites)}
-          className="md:col-span-2"
-        />
+        <SiteScopeFields form={form} sites={sites} />
         <div className="space-y-2 md:col-span-2">
           <FormAlert message={form.formError} />
           <FormActions pending={form.pending} submitLabel="Invite" pendingLabel="Inviting…" onCancel={onCancel} />
@@ -342,22 +352,7 @@ function EditUserForm({
         <p className="self-end text-sm text-muted">
           {user.name} · {user.disabled ? "disabled" : "enabled"}
         </p>
-        <CheckboxField
-          form={form}
-          name="allSites"
-          label="Every site (also sites added later)"
-          hint="Administrators always see every site."
-          className="md:col-span-2"
-        />
-        <CheckboxGroupField
-          form={form}
-          name="siteIds"
-          label="Site scope"
-          hint={scopeHint}
-          disabled={Boolean(form.values.allSites)}
-          options={siteOptions(sites)}
-          className="md:col-span-2"
-        />
+        <SiteScopeFields form={form} sites={sites} />
         <div className="space-y-2 md:col-span-2">
           <FormAlert message={form.formError} />
           <FormActions pending={form.pending} submitLabel="Save access" onCancel={onCancel} />
