@@ -3,6 +3,7 @@ import next from "next";
 import nextConfig from "../../next.config.mjs";
 import { markForwardedHeadersChecked } from "./request-facts";
 import { refuseOversizedAction } from "./action-body-limit";
+import { strictTransportSecurity } from "./security-headers";
 import { rewriteForwarded, trustedProxies } from "./trusted-proxy";
 
 // The web process: Next.js behind a plain Node HTTP server that decides, before Next.js sees a request, which client
@@ -22,7 +23,8 @@ markForwardedHeadersChecked();
 
 const server = http.createServer((req, res) => {
   const facts = rewriteForwarded(req, trust);
-  if (facts.proto === "https") res.setHeader("strict-transport-security", "max-age=31536000; includeSubDomains");
+  const hsts = strictTransportSecurity(facts.proto);
+  if (hsts) res.setHeader("strict-transport-security", hsts);
   if (refuseOversizedAction(req, res, actionLimit)) return;
   void handle(req, res);
 });

@@ -26,6 +26,11 @@ export function contentSecurityPolicy({ nonce, liveOrigin, dev }: CspInput): str
   ].join("; ");
 }
 
+/** Strict-Transport-Security, only for a response the browser receives over HTTPS (one year, sub-domains included). */
+export function strictTransportSecurity(proto: "http" | "https"): string | null {
+  return proto === "https" ? "max-age=31536000; includeSubDomains" : null;
+}
+
 /** ws://host:port of a WebSocket URL, or null when it cannot be read. */
 export function webSocketOrigin(url: string): string | null {
   try {

@@ -3,6 +3,7 @@ import type { AddressInfo } from "node:net";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { refuseOversizedAction } from "@/lib/web/action-body-limit";
 import { clientAddress, markForwardedHeadersChecked, requestOrigin, UNKNOWN_ADDRESS } from "@/lib/web/request-facts";
+import { strictTransportSecurity } from "@/lib/web/security-headers";
 import { rewriteForwarded, trustedProxies, type TrustedProxies } from "@/lib/web/trusted-proxy";
 
 // The web server's front (lib/web/main.ts) on a real socket: which client address, host and protocol the app sees
@@ -14,7 +15,8 @@ let base: string;
 
 beforeAll(async () => {
   server = http.createServer((req, res) => {
-    rewriteForwarded(req, trust);
+    const hsts = strictTransportSecurity(rewriteForwarded(req, trust).proto);
+    if (hsts) res.setHeader("strict-transport-security", hsts);
     if (refuseOversizedAction(req, res, 1024)) return;
     req.resume();
     req.on("end", () => {
@@ -29,8 +31,10 @@ beforeAll(async () => {
 });
 afterAll(() => new Promise<void>((r) => server.close(() => r())));
 
-const ask = async (headers: Record<string, string>) =>
-  (await (await fetch(`${base}/api/x`, { headers })).json()) as { address: string; origin: string };
+const ask = async (headers: Record<string, string>) => {
+  const res = await fetch(`${base}/api/x`, { headers });
+  return { ...((await res.json()) as { address: string; origin: string }), hsts: res.headers.get("strict-transport-security") };
+};
 
 describe("forwarded headers", () => {
   it("without TRUST_PROXY, a client's X-Forwarded-For and X-Forwarded-Host are ignored", async () => {
@@ -40,6 +44,8 @@ describe("forwarded headers", () => {
       const r = await ask({ "x-forwarded-for": `198.51.100.${i}`, "x-real-ip": `203.0.113.${i}`, "x-forwarded-host": "evil.example", "x-forwarded-proto": "https" });
       seen.add(r.address);
       expect(r.origin).toBe(`http://127.0.0.1:${new URL(base).port}`);
+      // A client claiming HTTPS over plain HTTP gets no HSTS.
+      expect(r.hsts).toBeNull();
     }
     // Rotating the header does not rotate the address the limits count by.
     expect([...seen]).toEqual(["127.0.0.1"]);
@@ -51,6 +57,8 @@ describe("forwarded headers", () => {
     // 10.1.2.3 is a trusted inner proxy; 203.0.113.9 connected to it. The leftmost value is the client's own claim.
     expect(r.address).toBe("203.0.113.9");
     expect(r.origin).toBe("https://airkeep.example.org");
+    // HTTPS as the trusted proxy says: HSTS.
+    expect(r.hsts).toMatch(/^max-age=\d+/);
   });
 
   it("a proxy that is not named is not believed", async () => {
