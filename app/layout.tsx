@@ -2,6 +2,7 @@ import "@fontsource/roboto-mono/400.css";
 import "@fontsource/roboto-mono/700.css";
 import "./globals.css";
 import type { Metadata, Viewport } from "next";
+import { connection } from "next/server";
 import type { ReactNode } from "react";
 
 export const metadata: Metadata = {
@@ -14,7 +15,9 @@ export const metadata: Metadata = {
 
 export const viewport: Viewport = { themeColor: "#d9dbde" };
 
-export default function RootLayout({ children }: { children: ReactNode }) {
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  // Every page is rendered per request, so each carries the nonce of its Content-Security-Policy (proxy.ts).
+  await connection();
   return (
     <html lang="en">
       <body className="min-h-screen antialiased">{children}</body>

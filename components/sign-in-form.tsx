@@ -2,6 +2,7 @@
 
 import { signIn } from "next-auth/react";
 import { useState, type FormEvent } from "react";
+import { afterSignInPath } from "@/shared/callback-url";
 
 export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
   const [error, setError] = useState<string | null>(null);
@@ -22,7 +23,7 @@ export function SignInForm({ callbackUrl }: { callbackUrl: string }) {
       setError(result?.error && result.error !== "CredentialsSignin" ? result.error : "Wrong e-mail address or password.");
       return;
     }
-    window.location.assign(callbackUrl);
+    window.location.assign(afterSignInPath(callbackUrl, window.location.origin));
   }
 
   return (

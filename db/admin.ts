@@ -107,9 +107,16 @@ function audit(db: Db, actor: AdminActor, now: number, entry: Omit<Parameters<ty
 
 // ---- Users ---------------------------------------------------------------------------------------
 
-export type InviteUserInput = { email: string; name: string; role: Role; siteIds: number[]; passwordHash: string };
+export type InviteUserInput = { email: string; name: string; role: Role; allSites: boolean; siteIds: number[]; passwordHash: string };
 
-const userSnapshot = (u: UserDto) => ({ email: u.email, name: u.name, role: u.role, siteIds: u.siteIds, disabled: u.disabled });
+const userSnapshot = (u: UserDto) => ({
+  email: u.email,
+  name: u.name,
+  role: u.role,
+  allSites: u.allSites,
+  siteIds: u.siteIds,
+  disabled: u.disabled,
+});
 
 export function adminInviteUser(db: Db, input: InviteUserInput, actor: AdminActor, now = Date.now()): UserDto {
   const siteIds = uniqueSorted(input.siteIds);
@@ -129,7 +136,7 @@ export function adminInviteUser(db: Db, input: InviteUserInput, actor: AdminActo
   );
 }
 
-export type UpdateUserInput = { id: number; role: Role; siteIds: number[]; disabled: boolean };
+export type UpdateUserInput = { id: number; role: Role; allSites: boolean; siteIds: number[]; disabled: boolean };
 
 export const LAST_ADMIN_MESSAGE = "This is the last enabled administrator. Make another account an administrator first.";
 

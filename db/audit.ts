@@ -1,4 +1,3 @@
-import { and, count, eq, gte } from "drizzle-orm";
 import type { Db } from "./client";
 import { appendEvent } from "./events";
 import { auditLog } from "./schema";
@@ -73,22 +72,4 @@ export function writeAudit(db: Db, entry: AuditEntry, ts = Date.now()): void {
       details: entry.details ?? null,
     })
     .run();
-}
-
-export function countAuditByActor(db: Db, action: string, actor: string, since: number): number {
-  const row = db
-    .select({ n: count() })
-    .from(auditLog)
-    .where(and(eq(auditLog.action, action), eq(auditLog.actor, actor), gte(auditLog.ts, since)))
-    .get();
-  return row?.n ?? 0;
-}
-
-export function countAuditByIp(db: Db, action: string, ip: string, since: number): number {
-  const row = db
-    .select({ n: count() })
-    .from(auditLog)
-    .where(and(eq(auditLog.action, action), eq(auditLog.ip, ip), gte(auditLog.ts, since)))
-    .get();
-  return row?.n ?? 0;
 }

@@ -23,11 +23,13 @@ export const users = sqliteTable("users", {
   disabled: integer("disabled", { mode: "boolean" }).notNull().default(false),
   pressureUnit: text("pressure_unit", { enum: ["bar", "psi", "MPa"] }).notNull().default("bar"),
   temperatureUnit: text("temperature_unit", { enum: ["C", "F"] }).notNull().default("C"),
+  /** Sees every site; otherwise only the sites in user_sites (none left: no site). Administrators always see all. */
+  allSites: integer("all_sites", { mode: "boolean" }).notNull().default(false),
   createdAt: integer("created_at").notNull(),
   updatedAt: integer("updated_at").notNull(),
 });
 
-/** A user with no rows here sees every site. */
+/** The sites of a user who does not see every site (users.all_sites). */
 export const userSites = sqliteTable(
   "user_sites",
   {
@@ -624,6 +626,27 @@ export const mailReceived = sqliteTable(
   },
   (t) => [index("mail_received_message_id_idx").on(t.messageId), index("mail_received_at_idx").on(t.receivedAt)],
 );
+
+// ---- Sign-in limits (web hardening) ----
+
+/**
+ * Sign-in attempts the per-account and per-address limits count. A row is reserved before the password is checked
+ * (so parallel tries cannot all pass the limit) and deleted when the sign-in succeeds.
+ */
+export const signInAttempts = sqliteTable(
+  "sign_in_attempts",
+  {
+    id: integer("id").primaryKey({ autoIncrement: true }),
+    ts: integer("ts").notNull(),
+    account: text("account").notNull(),
+    address: text("address").notNull(),
+    /** True while the password is being checked. */
+    pending: integer("pending", { mode: "boolean" }).notNull().default(true),
+  },
+  (t) => [index("sign_in_attempts_account_idx").on(t.account, t.ts), index("sign_in_attempts_address_idx").on(t.address, t.ts)],
+);
+
+// ---- end sign-in limits ----
 
 export type ContactRow = typeof contacts.$inferSelect;
 export type NotificationRuleRow = typeof notificationRules.$inferSelect;

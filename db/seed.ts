@@ -92,7 +92,7 @@ export function seedDemo(db: Db, knownSecrets: Map<string, string> = new Map(), 
       if (tx.select({ id: users.id }).from(users).where(eq(users.email, email)).get()) continue;
       const row = tx
         .insert(users)
-        .values({ email, name: u.name, role: u.role, passwordHash: (passwordHash ??= bcrypt.hashSync(DEMO_PASSWORD, 11)), createdAt: now, updatedAt: now })
+        .values({ email, name: u.name, role: u.role, passwordHash: (passwordHash ??= bcrypt.hashSync(DEMO_PASSWORD, 11)), allSites: !u.sites?.length, createdAt: now, updatedAt: now })
         .returning({ id: users.id })
         .get();
       for (const code of u.sites ?? []) tx.insert(userSites).values({ userId: row.id, siteId: siteIds.get(code)! }).run();

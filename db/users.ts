@@ -30,6 +30,7 @@ function toDto(u: UserRow, siteIds: number[]): UserDto {
     name: u.name,
     role: u.role,
     disabled: u.disabled,
+    allSites: u.allSites,
     siteIds,
     pressureUnit: u.pressureUnit,
     temperatureUnit: u.temperatureUnit,
@@ -51,9 +52,16 @@ export function getUserDto(db: Db, id: number): UserDto | null {
   return u ? toDto(u, siteIdsOfUser(db, id)) : null;
 }
 
-export type NewUser = { email: string; name: string; role: Role; passwordHash: string; siteIds: number[] };
+export type NewUser = { email: string; name: string; role: Role; passwordHash: string; allSites: boolean; siteIds: number[] };
+
+/** What is stored for a scope: administrators and "every site" keep no site list. */
+function storedScope(input: { role: Role; allSites: boolean; siteIds: number[] }) {
+  const allSites = input.role === "admin" || input.allSites;
+  return { allSites, siteIds: allSites ? [] : input.siteIds };
+}
 
 export function createUser(db: Db, input: NewUser, now = Date.now()): UserDto {
+  const scope = storedScope(input);
   return db.transaction((tx) => {
     const row = tx
       .insert(users)
@@ -62,40 +70,42 @@ export function createUser(db: Db, input: NewUser, now = Date.now()): UserDto {
         name: input.name,
         role: input.role,
         passwordHash: input.passwordHash,
+        allSites: scope.allSites,
         createdAt: now,
         updatedAt: now,
       })
       .returning()
       .get();
-    if (input.siteIds.length) {
+    if (scope.siteIds.length) {
       tx.insert(userSites)
-        .values(input.siteIds.map((siteId) => ({ userId: row.id, siteId })))
+        .values(scope.siteIds.map((siteId) => ({ userId: row.id, siteId })))
         .run();
     }
-    return toDto(row, input.siteIds);
+    return toDto(row, scope.siteIds);
   }, { behavior: "immediate" });
 }
 
 export function updateUserAccess(
   db: Db,
-  input: { id: number; role: Role; siteIds: number[]; disabled: boolean },
+  input: { id: number; role: Role; allSites: boolean; siteIds: number[]; disabled: boolean },
   now = Date.now(),
 ): UserDto | null {
+  const scope = storedScope(input);
   return db.transaction((tx) => {
     const row = tx
       .update(users)
-      .set({ role: input.role, disabled: input.disabled, updatedAt: now })
+      .set({ role: input.role, allSites: scope.allSites, disabled: input.disabled, updatedAt: now })
       .where(eq(users.id, input.id))
       .returning()
       .get();
     if (!row) return null;
     tx.delete(userSites).where(eq(userSites.userId, input.id)).run();
-    if (input.siteIds.length) {
+    if (scope.siteIds.length) {
       tx.insert(userSites)
-        .values(input.siteIds.map((siteId) => ({ userId: input.id, siteId })))
+        .values(scope.siteIds.map((siteId) => ({ userId: input.id, siteId })))
         .run();
     }
-    return toDto(row, input.siteIds);
+    return toDto(row, scope.siteIds);
   }, { behavior: "immediate" });
 }
 

@@ -154,6 +154,16 @@ CREATE TABLE `service_windows` (
 );
 --> statement-breakpoint
 CREATE INDEX `service_windows_compressor_idx` ON `service_windows` (`compressor_id`,`start_at`);--> statement-breakpoint
+CREATE TABLE `sign_in_attempts` (
+	`id` integer PRIMARY KEY AUTOINCREMENT NOT NULL,
+	`ts` integer NOT NULL,
+	`account` text NOT NULL,
+	`address` text NOT NULL,
+	`pending` integer DEFAULT true NOT NULL
+);
+--> statement-breakpoint
+CREATE INDEX `sign_in_attempts_account_idx` ON `sign_in_attempts` (`account`,`ts`);--> statement-breakpoint
+CREATE INDEX `sign_in_attempts_address_idx` ON `sign_in_attempts` (`address`,`ts`);--> statement-breakpoint
 CREATE TABLE `site_air_settings` (
 	`site_id` integer PRIMARY KEY NOT NULL,
 	`standard` text DEFAULT 'en12021' NOT NULL,
@@ -176,4 +186,5 @@ ALTER TABLE `readings_1h` ADD `purifier_bar_n` integer DEFAULT 0 NOT NULL;--> st
 ALTER TABLE `readings_1m` ADD `purifier_bar_min` real;--> statement-breakpoint
 ALTER TABLE `readings_1m` ADD `purifier_bar_max` real;--> statement-breakpoint
 ALTER TABLE `readings_1m` ADD `purifier_bar_sum` real DEFAULT 0 NOT NULL;--> statement-breakpoint
-ALTER TABLE `readings_1m` ADD `purifier_bar_n` integer DEFAULT 0 NOT NULL;
+ALTER TABLE `readings_1m` ADD `purifier_bar_n` integer DEFAULT 0 NOT NULL;--> statement-breakpoint
+ALTER TABLE `users` ADD `all_sites` integer DEFAULT false NOT NULL;

@@ -31,6 +31,13 @@ export function refusalsFrom(broker: ServiceStatus | null, ingester: ServiceStat
   return { broker: byPrefix(broker, "refused."), ingester: byPrefix(ingester, "reject.") };
 }
 
+/** What anyone may read: whether Airkeep is up and ingesting, and nothing about its processes. */
+export type PublicHealth = { status: Health["status"]; database: { ok: boolean } };
+
+export function publicHealth(h: Health): PublicHealth {
+  return { status: h.status, database: { ok: h.database.ok } };
+}
+
 export function readHealth(): Health {
   const time = Date.now();
   try {

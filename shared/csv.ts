@@ -3,7 +3,10 @@
 // quote inside it is written twice.
 //
 // Spreadsheets execute a cell that starts with = + - @ (or a tab or CR) as a formula; such text fields are written
-// with a leading apostrophe, as commonly recommended against CSV injection. Numbers are written as numbers.
+// with a leading apostrophe, as commonly recommended against CSV injection. A spreadsheet set to split on another
+// separator (a semicolon, a tab, a pipe) or to import line by line starts a cell after any of those inside a field
+// too, so a formula character after a separator (and optional spaces) gets the apostrophe as well. Numbers are
+// written as numbers.
 
 export function csvField(value: string | number | null | undefined): string {
   if (value === null || value === undefined) return "";
@@ -11,10 +14,14 @@ export function csvField(value: string | number | null | undefined): string {
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
+// The start of the field or of anything a spreadsheet could split off as a cell, then a formula character.
+// A tab or CR opening the field counts as a formula character too (it is itself a separator further in).
+const FORMULA_START = /(^|[,;|\t\r\n])([ ]*)(?=[=+\-@])|^(?=[\t\r])/g;
+
 /** A text field a person or a device wrote: neutralised against formula execution, then quoted as needed. */
 export function csvText(value: string | null | undefined): string {
   if (!value) return "";
-  return csvField(/^[=+\-@\t\r]/.test(value) ? `'${value}` : value);
+  return csvField(value.replace(FORMULA_START, "$1$2'"));
 }
 
 export function csvRecord(fields: readonly string[]): string {

@@ -22,21 +22,29 @@ const adminSeesEverySite: [(u: { role: string; siteIds: number[] }) => boolean, 
   { path: ["siteIds"], message: "Administrators always see every site; leave the site scope empty" },
 ];
 
+// "Every site" is a choice of its own: an empty list is no site, so deleting a person's last site never widens them.
+const scopeIsChosen: [(u: { role: string; allSites: boolean; siteIds: number[] }) => boolean, { path: string[]; message: string }] = [
+  (u) => u.role === "admin" || u.allSites || u.siteIds.length > 0,
+  { path: ["siteIds"], message: "Choose one or more sites, or tick Every site" },
+];
+
 export const userInviteSchema = z.object({
   email: emailSchema,
   name: z.string().trim().min(1, "Enter a name").max(120),
   role: roleSchema,
+  allSites: z.boolean(),
   siteIds: siteIdsSchema,
   password: passwordSchema,
-}).refine(...adminSeesEverySite);
+}).refine(...adminSeesEverySite).refine(...scopeIsChosen);
 export type UserInvite = z.infer<typeof userInviteSchema>;
 
 export const userUpdateSchema = z.object({
   id: z.number().int().positive(),
   role: roleSchema,
+  allSites: z.boolean(),
   siteIds: siteIdsSchema,
   disabled: z.boolean(),
-}).refine(...adminSeesEverySite);
+}).refine(...adminSeesEverySite).refine(...scopeIsChosen);
 export type UserUpdate = z.infer<typeof userUpdateSchema>;
 
 export const unitPreferenceUpdateSchema = unitPreferenceSchema;
@@ -47,6 +55,9 @@ export type UserDto = {
   name: string;
   role: z.infer<typeof roleSchema>;
   disabled: boolean;
+  /** Sees every site, also sites added later (always true for administrators). */
+  allSites: boolean;
+  /** The sites of a person who does not see every site; empty: none. */
   siteIds: number[];
   pressureUnit: z.infer<typeof unitPreferenceSchema>["pressureUnit"];
   temperatureUnit: z.infer<typeof unitPreferenceSchema>["temperatureUnit"];

@@ -1,11 +1,12 @@
 import { SafetyNotice } from "@/components/safety-notice";
 import { SignInForm } from "@/components/sign-in-form";
+import { afterSignInPath } from "@/shared/callback-url";
 
 export const metadata = { title: "Sign in" };
 
 export default async function LoginPage({ searchParams }: { searchParams: Promise<{ callbackUrl?: string }> }) {
   const { callbackUrl } = await searchParams;
-  const safeCallback = callbackUrl?.startsWith("/") && !callbackUrl.startsWith("//") ? callbackUrl : "/board";
+  const safeCallback = afterSignInPath(callbackUrl);
   return (
     <div className="flex min-h-screen flex-col">
       <main className="flex flex-1 items-center justify-center p-6">

@@ -10,6 +10,7 @@ import type { SiteDto } from "@/shared/site-schema";
 import { userInviteSchema, userUpdateSchema, type UserDto } from "@/shared/user-schema";
 import {
   buttonClass,
+  CheckboxField,
   CheckboxGroupField,
   FormActions,
   FormAlert,
@@ -17,12 +18,13 @@ import {
   SelectField,
   StatusLine,
   TextField,
+  type FormApi,
   useSchemaForm,
 } from "./form-kit";
 import { useAdminRefresh } from "./use-admin-refresh";
 
 const roleOptions = roles.map((r) => ({ value: r, label: roleLabels[r] }));
-const scopeHint = "Leave every box clear for access to all sites.";
+const scopeHint = "The sites this person sees when Every site is not ticked.";
 const lastAdminText = "The last enabled administrator must stay an enabled administrator.";
 
 type Panel = { kind: "invite" } | { kind: "edit"; user: UserDto } | null;
@@ -43,14 +45,14 @@ export function UsersAdmin({ currentUserId }: { currentUserId: number }) {
   const enabledAdmins = list.filter((u) => u.role === "admin" && !u.disabled).length;
   const isLastAdmin = (u: UserDto) => u.role === "admin" && !u.disabled && enabledAdmins <= 1;
   const scopeText = (u: UserDto) =>
-    u.siteIds.length ? u.siteIds.map((id) => siteNames.get(id) ?? `#${id}`).join(", ") : "All sites";
+    u.allSites ? "All sites" : u.siteIds.length ? u.siteIds.map((id) => siteNames.get(id) ?? `#${id}`).join(", ") : "No site";
 
   async function setDisabled(u: UserDto, disabled: boolean) {
     setBusyId(u.id);
     setRowError(null);
     setStatus(null);
     try {
-      const result = await updateUser({ id: u.id, role: u.role, siteIds: u.siteIds, disabled });
+      const result = await updateUser({ id: u.id, role: u.role, allSites: u.allSites, siteIds: u.siteIds, disabled });
       if (!result.ok) setRowError(result.error);
       else
         setStatus(
@@ -215,6 +217,30 @@ export function UsersAdmin({ currentUserId }: { currentUserId: number }) {
   );
 }
 
+/** "Every site", or the sites ticked below it (an empty list is no site). */
+function SiteScopeFields<V extends { allSites: boolean; siteIds: number[] }>({ form, sites }: { form: FormApi<V>; sites: SiteDto[] }) {
+  return (
+    <>
+      <CheckboxField
+        form={form}
+        name="allSites"
+        label="Every site (also sites added later)"
+        hint="Administrators always see every site."
+        className="md:col-span-2"
+      />
+      <CheckboxGroupField
+        form={form}
+        name="siteIds"
+        label="Site scope"
+        hint={scopeHint}
+        disabled={Boolean(form.values.allSites)}
+        options={siteOptions(sites)}
+        className="md:col-span-2"
+      />
+    </>
+  );
+}
+
 function siteOptions(sites: SiteDto[]) {
   return sites.map((s) => ({ value: s.id, label: `${s.name} (${s.code})` }));
 }
@@ -236,7 +262,7 @@ function InviteUserForm({
 }) {
   const form = useSchemaForm({
     schema: userInviteSchema,
-    initial: { email: "", name: "", role: "viewer" as Role, siteIds: [] as number[], password: "" },
+    initial: { email: "", name: "", role: "viewer" as Role, allSites: true, siteIds: [] as number[], password: "" },
   });
   const [showPassword, setShowPassword] = useState(false);
   return (
@@ -280,14 +306,7 @@ function InviteUserForm({
             </button>
           </div>
         </div>
-        <CheckboxGroupField
-          form={form}
-          name="siteIds"
-          label="Site scope"
-          hint={scopeHint}
-          options={siteOptions(sites)}
-          className="md:col-span-2"
-        />
+        <SiteScopeFields form={form} sites={sites} />
         <div className="space-y-2 md:col-span-2">
           <FormAlert message={form.formError} />
           <FormActions pending={form.pending} submitLabel="Invite" pendingLabel="Inviting…" onCancel={onCancel} />
@@ -312,8 +331,8 @@ function EditUserForm({
 }) {
   const form = useSchemaForm({
     schema: userUpdateSchema,
-    initial: { role: user.role as Role, siteIds: user.siteIds },
-    toInput: (v) => ({ id: user.id, role: v.role, siteIds: v.siteIds, disabled: user.disabled }),
+    initial: { role: user.role as Role, allSites: user.allSites, siteIds: user.siteIds },
+    toInput: (v) => ({ id: user.id, role: v.role, allSites: v.allSites, siteIds: v.allSites ? [] : v.siteIds, disabled: user.disabled }),
     check: (v) => (lastAdmin && v.role !== "admin" ? { role: [lastAdminText] } : {}),
   });
   return (
@@ -333,14 +352,7 @@ function EditUserForm({
         <p className="self-end text-sm text-muted">
           {user.name} · {user.disabled ? "disabled" : "enabled"}
         </p>
-        <CheckboxGroupField
-          form={form}
-          name="siteIds"
-          label="Site scope"
-          hint={scopeHint}
-          options={siteOptions(sites)}
-          className="md:col-span-2"
-        />
+        <SiteScopeFields form={form} sites={sites} />
         <div className="space-y-2 md:col-span-2">
           <FormAlert message={form.formError} />
           <FormActions pending={form.pending} submitLabel="Save access" onCancel={onCancel} />

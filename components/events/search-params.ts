@@ -23,7 +23,8 @@ const cursor = z
   });
 
 export const eventSearchParamsSchema = z.object({
-  q: opt(z.string().trim().max(200)),
+  // A NUL or another control character is never part of a search; SQLite's full-text query would fail on it.
+  q: opt(z.string().trim().max(200).refine((s) => !/[\u0000-\u001f\u007f]/.test(s), "The search may not contain control characters")),
   site: opt(z.coerce.number().int().positive()),
   compressor: opt(z.coerce.number().int().positive()),
   priority: opt(prioritySchema),

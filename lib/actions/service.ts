@@ -4,7 +4,7 @@ import { headers } from "next/headers";
 import { z } from "zod";
 import { getDb } from "@/db/client";
 import { runAction, type ActionResult } from "@/lib/api/action";
-import { clientAddress } from "@/lib/auth/options";
+import { clientAddress } from "@/lib/web/request-facts";
 import type { CurrentUser } from "@/lib/auth/current-user";
 import {
   addServiceWindow as addWindow,

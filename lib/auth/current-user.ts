@@ -1,6 +1,8 @@
 import { getServerSession } from "next-auth";
+import { headers } from "next/headers";
 import { forbidden, redirect } from "next/navigation";
 import { getDb } from "@/db/client";
+import { PAGE_PATH_HEADER, signInUrl } from "@/shared/callback-url";
 import { can, denialReason, type Permission } from "@/shared/roles";
 import { authOptions } from "./options";
 import { resolveSession, type CurrentUser } from "./session-check";
@@ -34,10 +36,10 @@ export async function requirePermission(permission: Permission): Promise<Current
   return user;
 }
 
-/** For server components: redirects to sign-in, or renders the 403 page. */
+/** For server components: redirects to sign-in (and back to this page afterwards), or renders the 403 page. */
 export async function pageUser(permission?: Permission): Promise<CurrentUser> {
   const user = await currentUser();
-  if (!user) redirect("/login");
+  if (!user) redirect(signInUrl((await headers()).get(PAGE_PATH_HEADER)));
   if (permission && !can(user.role, permission)) forbidden();
   return user;
 }

@@ -1,29 +1,24 @@
 import { randomUUID } from "node:crypto";
 import type { NextAuthOptions } from "next-auth";
 import CredentialsProvider from "next-auth/providers/credentials";
-import { countAuditByActor, countAuditByIp, writeAudit } from "@/db/audit";
+import { writeAudit } from "@/db/audit";
 import { getDb } from "@/db/client";
 import { createSession } from "@/db/sessions";
+import { reserveSignInAttempt, settleSignInAttempt } from "@/db/sign-in-attempts";
 import { findUserByEmail } from "@/db/users";
+import { clientAddress } from "@/lib/web/request-facts";
 import { signInSchema } from "@/shared/user-schema";
 import { sessionPolicy } from "./policy";
+import { resolveSession } from "./session-check";
 import { DUMMY_HASH, verifyPassword } from "./password";
 
-type HeaderBag = Record<string, string | string[] | undefined> | Headers | undefined;
-
-function header(headers: HeaderBag, name: string): string | undefined {
-  if (!headers) return undefined;
-  if (typeof (headers as Headers).get === "function") return (headers as Headers).get(name) ?? undefined;
-  const v = (headers as Record<string, string | string[] | undefined>)[name];
-  return Array.isArray(v) ? v[0] : v;
-}
-
-export function clientAddress(headers: HeaderBag): string {
-  const forwarded = header(headers, "x-forwarded-for")?.split(",")[0]?.trim();
-  return forwarded || header(headers, "x-real-ip") || "local";
-}
-
 export class SignInRefused extends Error {}
+
+class SessionEnded extends Error {
+  constructor() {
+    super("The session has ended.");
+  }
+}
 
 /** Checks the rate limits, the password and the account; writes every outcome to the audit log. */
 export async function authenticate(rawEmail: unknown, rawPassword: unknown, ip: string) {
@@ -35,10 +30,13 @@ export async function authenticate(rawEmail: unknown, rawPassword: unknown, ip: 
   const since = Date.now() - failureWindowMs;
   const minutes = Math.round(failureWindowMs / 60_000);
 
-  if (
-    countAuditByActor(db, "auth.sign_in_failed", email, since) >= maxFailuresPerAccount ||
-    countAuditByIp(db, "auth.sign_in_failed", ip, since) >= maxFailuresPerAddress
-  ) {
+  // The attempt is reserved before the password check (which awaits), so parallel tries cannot all pass the limit.
+  const attempt = reserveSignInAttempt(
+    db,
+    { account: email, address: ip },
+    { since, maxPerAccount: maxFailuresPerAccount, maxPerAddress: maxFailuresPerAddress },
+  );
+  if (attempt === null) {
     writeAudit(db, { actor: email, action: "auth.sign_in_throttled", ip });
     throw new SignInRefused(`Too many failed sign-ins. Wait ${minutes} minutes and try again, or ask an administrator.`);
   }
@@ -46,13 +44,16 @@ export async function authenticate(rawEmail: unknown, rawPassword: unknown, ip: 
   const user = findUserByEmail(db, email);
   const ok = await verifyPassword(password, user?.passwordHash ?? DUMMY_HASH);
   if (!user || !ok) {
+    settleSignInAttempt(db, attempt, false);
     writeAudit(db, { actor: email, action: "auth.sign_in_failed", ip, details: { reason: user ? "password" : "unknown account" } });
     throw new SignInRefused("Wrong e-mail address or password.");
   }
   if (user.disabled) {
+    settleSignInAttempt(db, attempt, false);
     writeAudit(db, { actorUserId: user.id, actor: email, action: "auth.sign_in_failed", ip, details: { reason: "disabled" } });
     throw new SignInRefused("This account is disabled. Ask an administrator.");
   }
+  settleSignInAttempt(db, attempt, true);
   const sid = randomUUID();
   createSession(db, { id: sid, userId: user.id, ip });
   writeAudit(db, { actorUserId: user.id, actor: email, action: "auth.sign_in", ip });
@@ -71,7 +72,7 @@ export const authOptions: NextAuthOptions = {
         password: { label: "Password", type: "password" },
       },
       async authorize(credentials, req) {
-        return authenticate(credentials?.email, credentials?.password, clientAddress(req?.headers as HeaderBag));
+        return authenticate(credentials?.email, credentials?.password, clientAddress(req?.headers as Record<string, string | undefined> | undefined));
       },
     }),
   ],
@@ -82,7 +83,11 @@ export const authOptions: NextAuthOptions = {
         token.uid = Number(u.id);
         token.sid = u.sid;
         token.role = u.role;
+        return token;
       }
+      // A token whose session was signed out, revoked or timed out is no session: next-auth then answers
+      // /api/auth/session with nobody and clears the cookie.
+      if (!resolveSession(getDb(), { uid: token.uid, sid: token.sid })) throw new SessionEnded();
       return token;
     },
     async session({ session, token }) {
@@ -90,6 +95,13 @@ export const authOptions: NextAuthOptions = {
       session.sid = token.sid;
       session.role = token.role;
       return session;
+    },
+  },
+  logger: {
+    error(code, metadata) {
+      // An ended session is an expected outcome, not a server error.
+      if (code === "JWT_SESSION_ERROR" && metadata instanceof SessionEnded) return;
+      console.error(`[next-auth][error][${code}]`, metadata);
     },
   },
   events: {

@@ -35,13 +35,12 @@ export function resolveSession(
   const user = findUserById(db, row.userId);
   if (!user || user.disabled) return null;
   if (now - row.lastSeenAt > TOUCH_EVERY_MS) touchSession(db, row.id, now);
-  const siteIds = siteIdsOfUser(db, user.id);
   return {
     id: user.id,
     email: user.email,
     name: user.name,
     role: user.role,
-    siteIds: siteIds.length ? siteIds : null,
+    siteIds: user.role === "admin" || user.allSites ? null : siteIdsOfUser(db, user.id),
     units: { pressureUnit: user.pressureUnit, temperatureUnit: user.temperatureUnit },
     sessionId: row.id,
   };

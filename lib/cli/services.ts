@@ -5,7 +5,6 @@ import { bundleNodeProgram, programFlags } from "./node-bundle";
 import { runJob, startProcess } from "./processes";
 
 const tsx = path.resolve("node_modules/.bin/tsx");
-const next = path.resolve("node_modules/next/dist/bin/next");
 
 export type ServiceOptions = {
   /** Publish the demo fleet; first write the missing history (backfillDays) while everything else already runs. */
@@ -44,7 +43,7 @@ export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions
   } else {
     where.push("Files      S3_URL");
   }
-  startProcess("web", process.execPath, [next, "start", "-p", env.PORT ?? "3000", "-H", env.HOST ?? "127.0.0.1"], env);
+  startProcess("web", process.execPath, await program("web"), { ...env, NODE_ENV: "production" });
 
   if (opts.simulator) {
     const days = opts.backfillDays ?? 0;

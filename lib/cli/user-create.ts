@@ -19,6 +19,7 @@ const parsed = userInviteSchema.safeParse({
   email: values.email,
   name: values.name ?? values.email,
   role: values.role,
+  allSites: true,
   siteIds: [],
   password: values.password ?? process.env.AIRKEEP_PASSWORD,
 });

@@ -37,7 +37,7 @@ afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
 beforeEach(() => {
   db = openDatabase(path.join(dir, `test-${++n}.db`));
   runMigrations(db);
-  const admin = createUser(db, { email: "root@example.org", name: "Root", role: "admin", passwordHash: "x", siteIds: [] });
+  const admin = createUser(db, { email: "root@example.org", name: "Root", role: "admin", passwordHash: "x", allSites: true, siteIds: [] });
   actor = { userId: admin.id, email: admin.email, ip: "127.0.0.1" };
 });
 
@@ -90,19 +90,19 @@ function setup() {
 describe("users", () => {
   it("invites a user with a site scope and audits it without the password hash", () => {
     const { s1, s2 } = setup();
-    const u = adminInviteUser(db, { email: "ana@example.org", name: "Ana", role: "technician", siteIds: [s2.id, s1.id, s2.id], passwordHash: "hash" }, actor);
-    expect(getUserDto(db, u.id)).toMatchObject({ role: "technician", siteIds: [s1.id, s2.id], disabled: false });
+    const u = adminInviteUser(db, { email: "ana@example.org", name: "Ana", role: "technician", allSites: false, siteIds: [s2.id, s1.id, s2.id], passwordHash: "hash" }, actor);
+    expect(getUserDto(db, u.id)).toMatchObject({ role: "technician", allSites: false, siteIds: [s1.id, s2.id], disabled: false });
     const entry = db.select().from(auditLog).where(eq(auditLog.action, "user.invite")).get()!;
     expect(entry).toMatchObject({ actor: "root@example.org", actorUserId: actor.userId, targetType: "user", targetId: String(u.id), ip: "127.0.0.1" });
-    expect(entry.details).toEqual({ after: { email: "ana@example.org", name: "Ana", role: "technician", siteIds: [s1.id, s2.id], disabled: false } });
+    expect(entry.details).toEqual({ after: { email: "ana@example.org", name: "Ana", role: "technician", allSites: false, siteIds: [s1.id, s2.id], disabled: false } });
     expect(JSON.stringify(entry.details)).not.toContain("hash");
   });
 
   it("refuses a duplicate e-mail as a field error and writes nothing", () => {
-    adminInviteUser(db, { email: "ana@example.org", name: "Ana", role: "viewer", siteIds: [], passwordHash: "h" }, actor);
+    adminInviteUser(db, { email: "ana@example.org", name: "Ana", role: "viewer", allSites: true, siteIds: [], passwordHash: "h" }, actor);
     const before = { users: rows(users), audit: rows(auditLog) };
     const r = refusal(() =>
-      adminInviteUser(db, { email: "ANA@example.org", name: "Other Ana", role: "admin", siteIds: [], passwordHash: "h" }, actor),
+      adminInviteUser(db, { email: "ANA@example.org", name: "Other Ana", role: "admin", allSites: true, siteIds: [], passwordHash: "h" }, actor),
     );
     expect(r.status).toBe(409);
     expect(r.fieldErrors).toEqual({ email: ["An account with this e-mail address already exists"] });
@@ -113,7 +113,7 @@ describe("users", () => {
     const { s1 } = setup();
     const before = { users: rows(users), scopes: rows(userSites), audit: rows(auditLog) };
     const r = refusal(() =>
-      adminInviteUser(db, { email: "ben@example.org", name: "Ben", role: "viewer", siteIds: [s1.id, 9999], passwordHash: "h" }, actor),
+      adminInviteUser(db, { email: "ben@example.org", name: "Ben", role: "viewer", allSites: false, siteIds: [s1.id, 9999], passwordHash: "h" }, actor),
     );
     expect(r.status).toBe(409);
     expect(r.fieldErrors?.siteIds).toBeDefined();
@@ -126,47 +126,47 @@ describe("users", () => {
     const before = { users: rows(users), scopes: rows(userSites) };
     breakAudit();
     expect(() =>
-      adminInviteUser(db, { email: "cat@example.org", name: "Cat", role: "viewer", siteIds: [s1.id], passwordHash: "h" }, actor),
+      adminInviteUser(db, { email: "cat@example.org", name: "Cat", role: "viewer", allSites: false, siteIds: [s1.id], passwordHash: "h" }, actor),
     ).toThrow(/audit unavailable/);
     expect({ users: rows(users), scopes: rows(userSites) }).toEqual(before);
   });
 
   it("keeps the old role and scope when an update fails half-way", () => {
     const { s1, s2 } = setup();
-    const u = adminInviteUser(db, { email: "dan@example.org", name: "Dan", role: "viewer", siteIds: [s1.id], passwordHash: "h" }, actor);
-    refusal(() => adminUpdateUser(db, { id: u.id, role: "engineer", siteIds: [s2.id, 12345], disabled: false }, actor));
-    expect(getUserDto(db, u.id)).toMatchObject({ role: "viewer", siteIds: [s1.id] });
+    const u = adminInviteUser(db, { email: "dan@example.org", name: "Dan", role: "viewer", allSites: false, siteIds: [s1.id], passwordHash: "h" }, actor);
+    refusal(() => adminUpdateUser(db, { id: u.id, role: "engineer", allSites: false, siteIds: [s2.id, 12345], disabled: false }, actor));
+    expect(getUserDto(db, u.id)).toMatchObject({ role: "viewer", allSites: false, siteIds: [s1.id] });
   });
 
   it("updates role and scope and audits before and after", () => {
     const { s2 } = setup();
-    const u = adminInviteUser(db, { email: "eve@example.org", name: "Eve", role: "viewer", siteIds: [], passwordHash: "h" }, actor);
-    const after = adminUpdateUser(db, { id: u.id, role: "supervisor", siteIds: [s2.id], disabled: false }, actor);
-    expect(after).toMatchObject({ role: "supervisor", siteIds: [s2.id] });
+    const u = adminInviteUser(db, { email: "eve@example.org", name: "Eve", role: "viewer", allSites: true, siteIds: [], passwordHash: "h" }, actor);
+    const after = adminUpdateUser(db, { id: u.id, role: "supervisor", allSites: false, siteIds: [s2.id], disabled: false }, actor);
+    expect(after).toMatchObject({ role: "supervisor", allSites: false, siteIds: [s2.id] });
     const entry = db.select().from(auditLog).where(eq(auditLog.action, "user.update")).get()!;
     expect(entry.details).toMatchObject({
-      before: { role: "viewer", siteIds: [] },
-      after: { role: "supervisor", siteIds: [s2.id] },
+      before: { role: "viewer", allSites: true, siteIds: [] },
+      after: { role: "supervisor", allSites: false, siteIds: [s2.id] },
       sessionsRevoked: false,
     });
   });
 
   it("refuses an unknown account with 404", () => {
-    expect(refusal(() => adminUpdateUser(db, { id: 999, role: "viewer", siteIds: [], disabled: false }, actor)).status).toBe(404);
+    expect(refusal(() => adminUpdateUser(db, { id: 999, role: "viewer", allSites: true, siteIds: [], disabled: false }, actor)).status).toBe(404);
   });
 
   it("disabling revokes every session of the account; enabling does not bring them back", () => {
-    const u = adminInviteUser(db, { email: "fay@example.org", name: "Fay", role: "viewer", siteIds: [], passwordHash: "h" }, actor);
+    const u = adminInviteUser(db, { email: "fay@example.org", name: "Fay", role: "viewer", allSites: true, siteIds: [], passwordHash: "h" }, actor);
     createSession(db, { id: "s-1", userId: u.id, ip: "" });
     createSession(db, { id: "s-2", userId: u.id, ip: "" });
     createSession(db, { id: "s-root", userId: actor.userId, ip: "" });
-    adminUpdateUser(db, { id: u.id, role: "viewer", siteIds: [], disabled: true }, actor, 5_000);
+    adminUpdateUser(db, { id: u.id, role: "viewer", allSites: true, siteIds: [], disabled: true }, actor, 5_000);
     expect(findSession(db, "s-1")?.revokedAt).toBe(5_000);
     expect(findSession(db, "s-2")?.revokedAt).toBe(5_000);
     expect(findSession(db, "s-root")?.revokedAt).toBeNull();
     const entry = db.select().from(auditLog).where(eq(auditLog.action, "user.update")).get()!;
     expect(entry.details).toMatchObject({ before: { disabled: false }, after: { disabled: true }, sessionsRevoked: true });
-    adminUpdateUser(db, { id: u.id, role: "viewer", siteIds: [], disabled: false }, actor, 6_000);
+    adminUpdateUser(db, { id: u.id, role: "viewer", allSites: true, siteIds: [], disabled: false }, actor, 6_000);
     expect(findSession(db, "s-1")?.revokedAt).toBe(5_000);
     expect(getUserDto(db, u.id)?.disabled).toBe(false);
   });
@@ -175,11 +175,11 @@ describe("users", () => {
     it("cannot demote or disable themselves; nothing changes and no session is revoked", () => {
       createSession(db, { id: "s-root", userId: actor.userId, ip: "" });
       const auditBefore = rows(auditLog);
-      const demote = refusal(() => adminUpdateUser(db, { id: actor.userId, role: "engineer", siteIds: [], disabled: false }, actor));
+      const demote = refusal(() => adminUpdateUser(db, { id: actor.userId, role: "engineer", allSites: true, siteIds: [], disabled: false }, actor));
       expect(demote.status).toBe(409);
       expect(demote.message).toMatch(/You are the last enabled administrator/);
       expect(demote.fieldErrors?.role).toBeDefined();
-      const disable = refusal(() => adminUpdateUser(db, { id: actor.userId, role: "admin", siteIds: [], disabled: true }, actor));
+      const disable = refusal(() => adminUpdateUser(db, { id: actor.userId, role: "admin", allSites: true, siteIds: [], disabled: true }, actor));
       expect(disable.fieldErrors?.disabled).toBeDefined();
       expect(getUserDto(db, actor.userId)).toMatchObject({ role: "admin", disabled: false });
       expect(findSession(db, "s-root")?.revokedAt).toBeNull();
@@ -187,20 +187,23 @@ describe("users", () => {
     });
 
     it("a disabled administrator does not count as another one", () => {
-      const other = adminInviteUser(db, { email: "gus@example.org", name: "Gus", role: "admin", siteIds: [], passwordHash: "h" }, actor);
-      adminUpdateUser(db, { id: other.id, role: "admin", siteIds: [], disabled: true }, actor);
-      refusal(() => adminUpdateUser(db, { id: actor.userId, role: "viewer", siteIds: [], disabled: false }, actor));
+      const other = adminInviteUser(db, { email: "gus@example.org", name: "Gus", role: "admin", allSites: true, siteIds: [], passwordHash: "h" }, actor);
+      adminUpdateUser(db, { id: other.id, role: "admin", allSites: true, siteIds: [], disabled: true }, actor);
+      refusal(() => adminUpdateUser(db, { id: actor.userId, role: "viewer", allSites: true, siteIds: [], disabled: false }, actor));
       // Re-enabling the other administrator makes the change possible.
-      adminUpdateUser(db, { id: other.id, role: "admin", siteIds: [], disabled: false }, actor);
-      expect(adminUpdateUser(db, { id: actor.userId, role: "viewer", siteIds: [], disabled: false }, actor).role).toBe("viewer");
+      adminUpdateUser(db, { id: other.id, role: "admin", allSites: true, siteIds: [], disabled: false }, actor);
+      expect(adminUpdateUser(db, { id: actor.userId, role: "viewer", allSites: true, siteIds: [], disabled: false }, actor).role).toBe("viewer");
       // Now the other one is the last, and may not go either.
       const otherActor = { userId: other.id, email: other.email };
-      refusal(() => adminUpdateUser(db, { id: other.id, role: "admin", siteIds: [], disabled: true }, otherActor));
+      refusal(() => adminUpdateUser(db, { id: other.id, role: "admin", allSites: true, siteIds: [], disabled: true }, otherActor));
     });
 
-    it("other administrators can still change their own scope", () => {
+    it("an administrator always keeps every site, whatever scope is sent", () => {
       const { s1 } = setup();
-      expect(adminUpdateUser(db, { id: actor.userId, role: "admin", siteIds: [s1.id], disabled: false }, actor).siteIds).toEqual([s1.id]);
+      expect(adminUpdateUser(db, { id: actor.userId, role: "admin", allSites: false, siteIds: [s1.id], disabled: false }, actor)).toMatchObject({
+        allSites: true,
+        siteIds: [],
+      });
     });
   });
 });

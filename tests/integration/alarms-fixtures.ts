@@ -73,7 +73,7 @@ export function seedFleet(db: Db, limits: readonly Limit[] = modelLimits): Fleet
   const c2 = Number(comp.run(siteB, modelId, "CR-2 Bank charger", "T-0002", "cr-bank", now, now).lastInsertRowid);
   const supervisor = Number(
     s
-      .prepare("INSERT INTO users (email, name, password_hash, role, created_at, updated_at) VALUES ('sup@test', 'Sam Okafor', 'x', 'supervisor', ?, ?)")
+      .prepare("INSERT INTO users (email, name, password_hash, role, all_sites, created_at, updated_at) VALUES ('sup@test', 'Sam Okafor', 'x', 'supervisor', 1, ?, ?)")
       .run(now, now).lastInsertRowid,
   );
   setLimits(db, "model", modelId, limits, now);

@@ -30,8 +30,8 @@ beforeAll(() => {
   const add = (name: string, role: Role, siteIds: number[] = []) => {
     const id = Number(
       db.$client
-        .prepare("INSERT INTO users (email, name, password_hash, role, created_at, updated_at) VALUES (?, ?, 'x', ?, 0, 0)")
-        .run(`${name}@airkeep.test`, name, role).lastInsertRowid,
+        .prepare("INSERT INTO users (email, name, password_hash, role, all_sites, created_at, updated_at) VALUES (?, ?, 'x', ?, ?, 0, 0)")
+        .run(`${name}@airkeep.test`, name, role, siteIds.length ? 0 : 1).lastInsertRowid,
     );
     for (const s of siteIds) db.$client.prepare("INSERT INTO user_sites (user_id, site_id) VALUES (?, ?)").run(id, s);
     createSession(db, { id: `sid-${name}`, userId: id, ip: "" });

@@ -32,7 +32,7 @@ const sql = (text: string, ...params: unknown[]) => db.$client.prepare(text).run
 function addUser(email: string, role = "supervisor"): number {
   const now = Date.now();
   return Number(
-    sql("INSERT INTO users (email, name, password_hash, role, created_at, updated_at) VALUES (?, ?, '-', ?, ?, ?)", email, email, role, now, now)
+    sql("INSERT INTO users (email, name, password_hash, role, all_sites, created_at, updated_at) VALUES (?, ?, '-', ?, 1, ?, ?)", email, email, role, now, now)
       .lastInsertRowid,
   );
 }

@@ -31,7 +31,7 @@ let site: number;
 beforeEach(() => {
   db = openDatabase(tmp.file(`contacts-${++n}.db`));
   runMigrations(db);
-  const admin = createUser(db, { email: "root@example.org", name: "Root", role: "admin", passwordHash: "x", siteIds: [] });
+  const admin = createUser(db, { email: "root@example.org", name: "Root", role: "admin", passwordHash: "x", allSites: true, siteIds: [] });
   actor = { userId: admin.id, email: admin.email, ip: "127.0.0.1" };
   site = db.insert(sites).values({ name: "Halden Ridge Fire Station", code: "halden-ridge", timeZone: "Europe/Oslo", createdAt: 0 }).returning().get().id;
 });

@@ -18,6 +18,8 @@ vi.mock("next-auth", async (importOriginal) => ({
 vi.mock("next/headers", () => ({ headers: async () => new Headers({ "x-forwarded-for": "192.0.2.10" }) }));
 
 const { saveThresholds, revertThresholds } = await import("@/app/(app)/thresholds/actions");
+// As behind Airkeep's web server, which rewrites X-Forwarded-For to the client's address before the app reads it.
+(await import("@/lib/web/request-facts")).markForwardedHeadersChecked();
 
 let t: TempDb;
 let db: Db;
@@ -32,7 +34,7 @@ beforeAll(() => {
   for (const role of ["viewer", "supervisor", "technician", "engineer", "admin"] as Role[]) {
     const id = Number(
       db.$client
-        .prepare("INSERT INTO users (email, name, password_hash, role, created_at, updated_at) VALUES (?, ?, 'x', ?, 0, 0)")
+        .prepare("INSERT INTO users (email, name, password_hash, role, all_sites, created_at, updated_at) VALUES (?, ?, 'x', ?, 1, 0, 0)")
         .run(`${role}@airkeep.test`, `A ${role}`, role).lastInsertRowid,
     );
     createSession(db, { id: `sid-${role}`, userId: id, ip: "192.0.2.10" });

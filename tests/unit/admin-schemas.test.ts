@@ -27,7 +27,7 @@ const compressor = {
   bankVolumeL: 300,
   inService: true,
 };
-const invite = { email: "Ana@Example.org ", name: "Ana", role: "viewer", siteIds: [], password: "correct horse" };
+const invite = { email: "Ana@Example.org ", name: "Ana", role: "viewer", allSites: true, siteIds: [], password: "correct horse" };
 
 describe("site schema", () => {
   it("accepts an IANA zone and UTC", () => {
@@ -147,9 +147,15 @@ describe("user schemas", () => {
     expect(errorsOf(userInviteSchema, { ...invite, [field]: value })[field]).toBeDefined();
   });
 
-  it("update needs id, role, site ids and the disabled flag", () => {
-    expect(userUpdateSchema.safeParse({ id: 1, role: "admin", siteIds: [], disabled: false }).success).toBe(true);
-    expect(Object.keys(errorsOf(userUpdateSchema, { id: 1, role: "admin" })).sort()).toEqual(["disabled", "siteIds"]);
-    expect(errorsOf(userUpdateSchema, { id: 0, role: "viewer", siteIds: [], disabled: true }).id).toBeDefined();
+  it("update needs id, role, the every-site flag, site ids and the disabled flag", () => {
+    expect(userUpdateSchema.safeParse({ id: 1, role: "admin", allSites: true, siteIds: [], disabled: false }).success).toBe(true);
+    expect(Object.keys(errorsOf(userUpdateSchema, { id: 1, role: "admin" })).sort()).toEqual(["allSites", "disabled", "siteIds"]);
+    expect(errorsOf(userUpdateSchema, { id: 0, role: "viewer", allSites: true, siteIds: [], disabled: true }).id).toBeDefined();
+  });
+
+  it("an empty site list is no site: a limited person must be given a site or every site", () => {
+    expect(errorsOf(userInviteSchema, { ...invite, allSites: false, siteIds: [] }).siteIds).toEqual(["Choose one or more sites, or tick Every site"]);
+    expect(userInviteSchema.safeParse({ ...invite, allSites: false, siteIds: [2] }).success).toBe(true);
+    expect(userUpdateSchema.safeParse({ id: 1, role: "admin", allSites: false, siteIds: [], disabled: false }).success).toBe(true);
   });
 });

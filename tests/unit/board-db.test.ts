@@ -54,7 +54,7 @@ beforeAll(() => {
   const base = { modelId: model.id, stopPressureBar: 300, restartPressureBar: 260, bankVolumeL: 100, inService: true };
   c1 = createCompressor(db, { ...base, name: "A-1", siteId: siteA, serial: "S-1", deviceId: "a-1" }).id;
   c2 = createCompressor(db, { ...base, name: "B-1", siteId: siteB, serial: "S-2", deviceId: "b-1" }).id;
-  adminId = createUser(db, { email: "a@example.test", name: "Ada Admin", role: "admin", passwordHash: "x", siteIds: [] }).id;
+  adminId = createUser(db, { email: "a@example.test", name: "Ada Admin", role: "admin", passwordHash: "x", allSites: true, siteIds: [] }).id;
 
   // Two hours of 1 Hz readings: delivery rises 0.01 bar per second from 200 bar.
   const store = createReadingStore(db);

@@ -97,6 +97,16 @@ describe("CSV writer against RFC 4180 (IETF, 2005), section 2", () => {
     expect(csvText("Oil pressure low")).toBe("Oil pressure low");
   });
 
+  // OWASP, "CSV Injection": a spreadsheet splitting on ; or a tab (locale or import setting) starts a new cell there.
+  it("neutralises a formula after a separator inside a field", () => {
+    expect(csvText("ok;=cmd|' /C calc'!A0")).toBe("ok;'=cmd|' /C calc'!A0");
+    expect(csvText("ok,=1+1")).toBe(`"ok,'=1+1"`);
+    expect(csvText("ok\t@SUM(A1)")).toBe("ok\t'@SUM(A1)");
+    expect(csvText("ok; -2+3")).toBe("ok; '-2+3");
+    expect(csvText("line one\n=1+1")).toBe(`"line one\n'=1+1"`);
+    expect(csvText("5 - 3 = 2")).toBe("5 - 3 = 2");
+  });
+
   it("writes an event with its time in ISO 8601 with the site's offset", () => {
     const e: EventDto = {
       id: 7,

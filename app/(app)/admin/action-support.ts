@@ -2,7 +2,7 @@ import { headers } from "next/headers";
 import { AdminRefusal, type AdminActor } from "@/db/admin";
 import { ActionFailure } from "@/lib/api/action";
 import type { CurrentUser } from "@/lib/auth/current-user";
-import { clientAddress } from "@/lib/auth/options";
+import { clientAddress } from "@/lib/web/request-facts";
 
 /** Who made an administrative change, and from where (for the audit row). */
 export async function actorOf(user: CurrentUser): Promise<AdminActor> {

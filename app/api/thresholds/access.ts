@@ -1,7 +1,7 @@
 import { headers } from "next/headers";
 import { z } from "zod";
 import type { ThresholdActor } from "@/db/threshold-edit";
-import { clientAddress } from "@/lib/auth/options";
+import { clientAddress } from "@/lib/web/request-facts";
 import type { CurrentUser } from "@/lib/auth/current-user";
 import { scopeTypeSchema, type ScopeType } from "@/shared/threshold-schema";
 

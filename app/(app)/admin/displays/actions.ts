@@ -4,6 +4,7 @@ import { headers } from "next/headers";
 import { getDb } from "@/db/client";
 import { createDisplayLink, DisplayLinkRefusal, revokeDisplayLink, type DisplayLinkDto } from "@/db/display-links";
 import { ActionFailure, runAction } from "@/lib/api/action";
+import { requestOrigin } from "@/lib/web/request-facts";
 import { actorOf } from "../action-support";
 import { displayLinkInputSchema, displayLinkRevokeSchema } from "./schema";
 
@@ -18,13 +19,7 @@ function refusals<T>(write: () => T): T {
 
 /** The address the administrator reached Airkeep by (a wall screen on the same network uses the same one). */
 async function publicOrigin(): Promise<string> {
-  const h = await headers();
-  const host = h.get("x-forwarded-host")?.split(",")[0]?.trim() || h.get("host");
-  if (host) {
-    const proto = h.get("x-forwarded-proto")?.split(",")[0]?.trim() || (process.env.NEXTAUTH_URL?.startsWith("https:") ? "https" : "http");
-    return `${proto}://${host}`;
-  }
-  return new URL(process.env.NEXTAUTH_URL ?? "http://localhost:3000").origin;
+  return requestOrigin(await headers()) ?? new URL(process.env.NEXTAUTH_URL ?? "http://localhost:3000").origin;
 }
 
 export type CreatedDisplayLink = { link: DisplayLinkDto; url: string };

@@ -1,5 +1,5 @@
 import { getDb } from "@/db/client";
-import { iterateEventChunks } from "@/db/event-search";
+import { iterateEventChunks, type EventDto } from "@/db/event-search";
 import { parseEventSearchParams } from "@/components/events/search-params";
 import { errorJson, route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
@@ -20,6 +20,8 @@ export const GET = route(async (request: Request) => {
   if (q.error) return errorJson(400, q.error);
 
   const chunks = iterateEventChunks(db, q.scope, q.filter, 2000);
+  // The first chunk is read before answering, so a query that fails does so with an error status, not a cut-off file.
+  let first: IteratorResult<EventDto[]> | null = chunks.next();
   const encoder = new TextEncoder();
   let headerSent = false;
   const stream = new ReadableStream<Uint8Array>({
@@ -30,7 +32,8 @@ export const GET = route(async (request: Request) => {
         return;
       }
       try {
-        const next = chunks.next();
+        const next = first ?? chunks.next();
+        first = null;
         if (next.done) {
           controller.close();
           return;

@@ -1,6 +1,8 @@
 import { getDb } from "@/db/client";
 import { getCompressor } from "@/db/compressors";
+import { readBodyLimited } from "@/lib/api/body";
 import { errorJson, route } from "@/lib/api/route";
+import { crossOriginRefusal } from "@/lib/api/same-origin";
 import { inScope, requirePermission } from "@/lib/auth/current-user";
 import { BacktestRefusal, runBacktest } from "@/lib/backtest/run";
 import { backtestRequestSchema, type BacktestMessage } from "@/shared/backtest";
@@ -22,10 +24,11 @@ const MAX_BODY_BYTES = 64 * 1024;
  * lines while it reads, then one {"type":"result",...} (or {"type":"error",...}). Closing the request stops the work.
  */
 export const POST = route(async (request: Request) => {
+  const refusal = crossOriginRefusal(request, "Backtests are run only from Airkeep's own pages.");
+  if (refusal) return refusal;
   const user = await requirePermission("thresholds.view");
-  if (Number(request.headers.get("content-length") ?? 0) > MAX_BODY_BYTES) return errorJson(413, "The request is too large.");
-  const text = await request.text();
-  if (text.length > MAX_BODY_BYTES) return errorJson(413, "The request is too large.");
+  const text = await readBodyLimited(request, MAX_BODY_BYTES);
+  if (text === null) return errorJson(413, "The request is too large.");
   let raw: unknown;
   try {
     raw = JSON.parse(text || "{}");

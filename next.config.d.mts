@@ -1,0 +1,4 @@
+import type { NextConfig } from "next";
+
+declare const nextConfig: NextConfig;
+export default nextConfig;
