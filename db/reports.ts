@@ -878,8 +878,7 @@ export function reportRecipients(db: Db, siteId: number): { userId: number; name
     db,
     `SELECT u.id AS userId, u.name, u.email FROM users u
      WHERE u.role = 'manager' AND u.disabled = 0
-       AND (NOT EXISTS (SELECT 1 FROM user_sites us WHERE us.user_id = u.id)
-            OR EXISTS (SELECT 1 FROM user_sites us WHERE us.user_id = u.id AND us.site_id = ?))
+       AND (u.all_sites = 1 OR EXISTS (SELECT 1 FROM user_sites us WHERE us.user_id = u.id AND us.site_id = ?))
      ORDER BY u.id`,
     siteId,
   );

@@ -14,6 +14,11 @@ export function findUserById(db: Db, id: number): UserRow | null {
   return db.select().from(users).where(eq(users.id, id)).get() ?? null;
 }
 
+/** The sites a person may see: null for every site (administrators, and anyone marked so), else the listed ones (maybe none). */
+export function siteScopeOf(db: Db, user: Pick<UserRow, "id" | "role" | "allSites">): number[] | null {
+  return user.role === "admin" || user.allSites ? null : siteIdsOfUser(db, user.id);
+}
+
 export function siteIdsOfUser(db: Db, userId: number): number[] {
   return db
     .select({ siteId: userSites.siteId })

@@ -1,6 +1,6 @@
 import type { Db } from "@/db/client";
 import { findSession, touchSession } from "@/db/sessions";
-import { findUserById, siteIdsOfUser } from "@/db/users";
+import { findUserById, siteScopeOf } from "@/db/users";
 import type { Role } from "@/shared/roles";
 import type { UnitPreference } from "@/shared/units";
 import { sessionPolicy } from "./policy";
@@ -40,7 +40,7 @@ export function resolveSession(
     email: user.email,
     name: user.name,
     role: user.role,
-    siteIds: user.role === "admin" || user.allSites ? null : siteIdsOfUser(db, user.id),
+    siteIds: siteScopeOf(db, user),
     units: { pressureUnit: user.pressureUnit, temperatureUnit: user.temperatureUnit },
     sessionId: row.id,
   };

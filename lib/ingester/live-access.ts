@@ -1,6 +1,6 @@
 import type { Db } from "@/db/client";
 import { findSession } from "@/db/sessions";
-import { findUserById, siteIdsOfUser } from "@/db/users";
+import { findUserById, siteScopeOf } from "@/db/users";
 import { sessionPolicy } from "@/lib/auth/policy";
 import type { LiveTokenClaims } from "@/lib/live-token";
 import { can } from "@/shared/roles";
@@ -39,7 +39,6 @@ export function liveAccessCheck(db: Db, limits: SessionLimits = sessionPolicy())
     if (!session || session.userId !== user.id || session.revokedAt != null) return { ok: false, reason: "signed-out" };
     if (now - session.lastSeenAt > limits.idleMs) return { ok: false, reason: "idle" };
     if (now - session.createdAt > limits.absoluteMs) return { ok: false, reason: "too-old" };
-    const siteIds = siteIdsOfUser(db, user.id);
-    return { ok: true, siteIds: siteIds.length ? siteIds : null };
+    return { ok: true, siteIds: siteScopeOf(db, user) };
   };
 }
