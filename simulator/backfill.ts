@@ -2,7 +2,7 @@ import cliProgress from "cli-progress";
 import type { Db } from "../db/client";
 import { createReadingStore } from "../db/readings";
 import { acknowledgeAlarms } from "../db/alarms";
-import { createAlarmEngine } from "../lib/alarms/engine";
+import { createAlarmEngine } from "../db/alarm-engine";
 import { createTelemetryStateWriter, type DeviceEventInput } from "../db/telemetry-state";
 import type { ReadingInput } from "../shared/telemetry";
 import { DeviceSim } from "./device-sim";

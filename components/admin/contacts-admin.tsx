@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { createContact, deleteContact, sendTestMail, updateContact } from "@/app/(app)/admin/contacts/actions";
+import { createContact, deleteContact, sendTestMail, updateContact } from "@/lib/actions/admin-contacts";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { mailQueries, type ContactsPageData } from "@/components/queries/mail";
 import { contactInputSchema, contactUpdateSchema, type ContactDto } from "@/shared/contact-schema";

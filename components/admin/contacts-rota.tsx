@@ -1,7 +1,7 @@
 "use client";
 
 import { useState } from "react";
-import { createRotaEntry, deleteRotaEntry, updateRotaEntry } from "@/app/(app)/admin/contacts/actions";
+import { createRotaEntry, deleteRotaEntry, updateRotaEntry } from "@/lib/actions/admin-contacts";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import type { ContactsPageData } from "@/components/queries/mail";
 import { rotaEntryInputSchema, rotaEntryUpdateSchema, type RotaEntryDto } from "@/shared/contact-schema";

@@ -1,7 +1,7 @@
 "use client";
 
 import { useState } from "react";
-import { createRule, deleteRule, updateRule } from "@/app/(app)/admin/contacts/actions";
+import { createRule, deleteRule, updateRule } from "@/lib/actions/admin-contacts";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import type { ContactsPageData } from "@/components/queries/mail";
 import { priorities, type Priority } from "@/shared/alarm-rules";

@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { createCompressorModel, updateCompressorModel } from "@/app/(app)/admin/models/actions";
+import { createCompressorModel, updateCompressorModel } from "@/lib/actions/admin-models";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import {

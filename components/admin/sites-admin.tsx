@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { createSite, updateSite } from "@/app/(app)/admin/sites/actions";
+import { createSite, updateSite } from "@/lib/actions/admin-sites";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import { siteInputSchema, siteUpdateSchema, type SiteDto } from "@/shared/site-schema";

@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { inviteUser, updateUser } from "@/app/(app)/admin/users/actions";
+import { inviteUser, updateUser } from "@/lib/actions/admin-users";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import { roleLabels, roles, type Role } from "@/shared/roles";

@@ -8,7 +8,7 @@ import {
   returnToServiceAction,
   shelveAlarmsAction,
   type AlarmActionOutcome,
-} from "@/app/(app)/alarms/actions";
+} from "@/lib/actions/alarms";
 import type { ActionResult } from "@/lib/api/action";
 import { acknowledgeSchema, MAX_SHELVE_MINUTES, outOfServiceSchema, returnToServiceSchema, shelveSchema } from "@/shared/alarm-schema";
 import { formatDuration } from "@/shared/alarm-text";

@@ -7,7 +7,7 @@ import type { LiveMessage } from "@/shared/live";
 import type { UnitPreference } from "@/shared/units";
 import { useServerNow } from "../live/server-clock";
 import { liveStatusText, useLive, type LiveState } from "../live/use-live";
-import type { AlarmCounts } from "../alarms/alarm-badges";
+import type { AlarmCounts } from "@/shared/alarm-schema";
 import { alarmQueries } from "../queries/alarms";
 import { applyLiveMessage, HttpError, liveQueries, liveTokenUrl, type BoardSource } from "../queries/live";
 import { useUnits } from "../use-units";

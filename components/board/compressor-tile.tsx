@@ -10,7 +10,8 @@ import {
 } from "@/shared/board";
 import { tripCodeLabel } from "@/shared/trip-codes";
 import { pressureFromBar, pressureLabel, type UnitPreference } from "@/shared/units";
-import { AlarmBadges, type AlarmCounts } from "../alarms/alarm-badges";
+import { AlarmBadges } from "../alarms/alarm-badges";
+import type { AlarmCounts } from "@/shared/alarm-schema";
 import { Band } from "./band";
 import { pressureParts, pressureShort, temperatureParts, type Quantity } from "./format";
 import { StateChip } from "./state-chip";

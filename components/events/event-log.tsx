@@ -8,7 +8,7 @@ import { priorities, type Priority } from "@/shared/alarm-rules";
 import { buttonClass } from "../admin/form-kit";
 import { PriorityMark, priorityWords } from "../alarms/priority-mark";
 import { eventQueries, eventsCsvUrl } from "../queries/events";
-import { eventKindLabel, eventKinds, eventKindLabels, type EventKind } from "./kinds";
+import { eventKindLabel, eventKinds, eventKindLabels, type EventKind } from "@/shared/event-kinds";
 import {
   effectiveZone,
   eventFilterQuery,
@@ -16,8 +16,8 @@ import {
   type EventCursorParam,
   type EventFilterParams,
   type ZoneSite,
-} from "./search-params";
-import { formatZoned, isoWithOffset, offsetLabel } from "./zoned-time";
+} from "@/shared/event-schema";
+import { formatZoned, isoWithOffset, offsetLabel } from "@/shared/zoned-time";
 import { FilterSelect } from "@/components/filter-select";
 
 export type EventCompressorOption = { id: number; name: string; siteId: number };

@@ -2,7 +2,7 @@
 
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect, useId, useMemo, useRef, useState, type FormEvent } from "react";
-import { revertThresholds, saveThresholds } from "@/app/(app)/thresholds/actions";
+import { revertThresholds, saveThresholds } from "@/lib/actions/thresholds";
 import { alarmSignals, limitKey, priorities, signalInfo, type AlarmSignal, type Priority } from "@/shared/alarm-rules";
 import {
   diffRows,

@@ -17,7 +17,7 @@ vi.mock("next-auth", async (importOriginal) => ({
 }));
 vi.mock("next/headers", () => ({ headers: async () => new Headers({ "x-forwarded-for": "192.0.2.10" }) }));
 
-const { saveThresholds, revertThresholds } = await import("@/app/(app)/thresholds/actions");
+const { saveThresholds, revertThresholds } = await import("@/lib/actions/thresholds");
 
 let t: TempDb;
 let db: Db;

@@ -1,6 +1,6 @@
 import { getDb } from "@/db/client";
 import { iterateEventChunks } from "@/db/event-search";
-import { parseEventSearchParams } from "@/components/events/search-params";
+import { parseEventSearchParams } from "@/shared/event-schema";
 import { errorJson, route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
 import { eventCsvHeader, eventCsvRecord } from "../csv";

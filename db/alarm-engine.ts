@@ -7,7 +7,7 @@
  * changes (a transition, or an evaluator timer to persist), once per batch, in one transaction.
  *
  * Restart safety: open alarms are the truth for what is active; the evaluator's timers are persisted beside them in the
- * same transaction (lib/alarms/snapshot.ts). A new engine on the same database neither loses, repeats nor invents an
+ * same transaction (db/alarm-snapshot.ts). A new engine on the same database neither loses, repeats nor invents an
  * alarm, provided each reading is evaluated in the transaction that stores it (see onReadings).
  */
 import { and, eq, inArray, lte } from "drizzle-orm";
@@ -27,7 +27,7 @@ import { alarmStates, dueForReAlarm } from "@/shared/alarm-lifecycle";
 import { defaultAlarmSettings, limitKey, type AlarmSettings, type AlarmSignal, type Limit } from "@/shared/alarm-rules";
 import { COMMS_ALARM_KEY } from "@/shared/alarm-text";
 import { runStateCode, runStates, type ReadingInput, type RunState } from "@/shared/telemetry";
-import { createSnapshotStore, parseSnapshot, type EngineSnapshot } from "./snapshot";
+import { createSnapshotStore, parseSnapshot, type EngineSnapshot } from "./alarm-snapshot";
 import {
   applyClear,
   applyRaise,
@@ -37,9 +37,9 @@ import {
   applyUnsuppressAll,
   type AlarmTransition,
   type UnitRef,
-} from "./transitions";
+} from "./alarm-transitions";
 
-export type { AlarmTransition } from "./transitions";
+export type { AlarmTransition } from "./alarm-transitions";
 
 export type AlarmEngineOptions = {
   settings?: AlarmSettings;
