@@ -15,7 +15,6 @@ import {
   addSplits,
   availabilityOf,
   clipIntervals,
-  mergeIntervals,
   mtbfSeconds,
   mttrSeconds,
   NO_PLANNED_SERVICE_NOTE,

@@ -269,7 +269,7 @@ function CompressorForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-3"

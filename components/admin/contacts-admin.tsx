@@ -215,7 +215,7 @@ function ContactForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-2"

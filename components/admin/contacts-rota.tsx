@@ -155,7 +155,7 @@ function RotaForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-3"

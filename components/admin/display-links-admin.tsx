@@ -150,7 +150,7 @@ export function DisplayLinksAdmin({
 
       {creating && (
         <FormPanel title="New display link">
-          <form ref={form.formRef} onSubmit={submit} noValidate className="grid max-w-2xl gap-3">
+          <form id={form.id} onSubmit={submit} noValidate className="grid max-w-2xl gap-3">
             <FormAlert message={form.formError} />
             <TextField form={form} name="label" label="Label" hint="Where the screen is, e.g. “Control room east wall”." maxLength={80} />
             <CheckboxGroupField

@@ -242,7 +242,7 @@ function InviteUserForm({
   return (
     <FormPanel title="Invite a user">
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label="Invite a user"
         className="grid gap-3 md:grid-cols-2"
@@ -319,7 +319,7 @@ function EditUserForm({
   return (
     <FormPanel title={`Access of ${user.email}`}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={`Access of ${user.email}`}
         className="grid gap-3 md:grid-cols-2"

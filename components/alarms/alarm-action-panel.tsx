@@ -106,7 +106,7 @@ export function AlarmActionPanel({
 
   return (
     <FormPanel title={c.title(ids.length)}>
-      <form ref={form.formRef} onSubmit={submit} noValidate className="space-y-2" data-testid="alarm-action-form" data-action={kind}>
+      <form id={form.id} onSubmit={submit} noValidate className="space-y-2" data-testid="alarm-action-form" data-action={kind}>
         <ul className="max-h-32 list-disc overflow-y-auto pl-5 text-sm">
           {names.map((n, i) => (
             <li key={i}>{n}</li>

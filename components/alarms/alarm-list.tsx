@@ -141,7 +141,7 @@ export function AlarmList({
   useEffect(() => {
     if (list.data) noteServerTime(list.data.at);
   }, [list.data]);
-  const now = useServerNow(list.data?.at ?? Date.now());
+  const now = useServerNow(list.data?.at ?? 0);
 
   const all = useMemo(() => list.data?.alarms ?? [], [list.data]);
   const shown = useMemo(

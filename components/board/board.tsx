@@ -1,7 +1,7 @@
 "use client";
 
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useCallback, useEffect, useState } from "react";
+import { useCallback, useState } from "react";
 import { classifyCondition, stateWords, type BoardData, type BoardSite, type StateWord } from "@/shared/board";
 import type { LiveMessage } from "@/shared/live";
 import type { UnitPreference } from "@/shared/units";
@@ -136,9 +136,7 @@ export function Board({ source, title }: { source: BoardSource; title: string })
   const refusedStatus = board.error instanceof HttpError ? board.error.status : live.status === "refused" ? live.refusal : null;
   const linkGone = kiosk && (refusedStatus === 410 || refusedStatus === 404);
   // A revoked wall screen drops its socket and stops polling: it shows the revoked page and nothing else.
-  useEffect(() => {
-    if (linkGone) setRevoked(true);
-  }, [linkGone]);
+  if (linkGone && !revoked) setRevoked(true);
   if (linkGone || revoked) return <DisplayRevoked />;
 
   return (

@@ -54,6 +54,7 @@ export function EventLog({
   const [draft, setDraft] = useState<Draft>(draftOf(initial));
   // Keyset positions of the pages visited: [null] is the newest page.
   const [stack, setStack] = useState<(EventCursorParam | null)[]>([null]);
+  const [openedAt] = useState(() => Date.now());
   const after = stack[stack.length - 1] ?? null;
   const page = useQuery(eventQueries.page(applied, after));
 
@@ -192,7 +193,7 @@ export function EventLog({
         <p id={`${ids}-zone-note`} className="text-xs text-muted" data-testid="event-zone">
           Times are entered and shown in <strong className="text-ink">{zone}</strong>
           {applied.site !== undefined ? " (the site’s time zone)" : ""}, currently{" "}
-          <span className="num">{offsetLabel(Date.now(), zone)}</span>. Press Search to apply words and times.
+          <span className="num">{offsetLabel(openedAt, zone)}</span>. Press Search to apply words and times.
         </p>
       </form>
 

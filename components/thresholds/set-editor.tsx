@@ -117,13 +117,11 @@ function LimitsForm({ set, scopeType, scopeId }: { set: ThresholdSetDto; scopeTy
   const backtested = lastRun !== null && lastRun.rowsKey === rowsKey;
 
   // Someone saved (this person elsewhere, a revert, a colleague): an untouched form simply follows.
-  useEffect(() => {
-    if (set.version !== base.version && changes.length === 0 && reason === "") {
-      setBase(set);
-      setDraft(draftFrom(scopeType, set.rows, set.inherited, units));
-      setRefusal(null);
-    }
-  }, [set, base.version, changes.length, reason, scopeType, units]);
+  if (set.version !== base.version && changes.length === 0 && reason === "") {
+    setBase(set);
+    setDraft(draftFrom(scopeType, set.rows, set.inherited, units));
+    setRefusal(null);
+  }
 
   // Units switched while editing: the typed numbers follow, standing for the same values.
   const shownUnits = useRef(units);
