@@ -15,6 +15,9 @@ export const priorityShapes = {
   advisory: "polygon(50% 0, 100% 50%, 50% 100%, 0 50%)",
 } as const;
 
+/** The stale hatch's stripes; text on a hatched panel is checked against them (tests/unit/contrast.test.ts). */
+export const staleHatchInk = "rgba(27,30,34,0.12)";
+
 const config: Config = {
   content: ["./app/**/*.{ts,tsx}", "./components/**/*.{ts,tsx}"],
   theme: {
@@ -26,9 +29,10 @@ const config: Config = {
         line: "#b9bdc3",
         ink: "#1b1e22",
         muted: "#555b63",
+        // Lines and fills only, never text: no grey lighter than `muted` reaches 4.5 : 1 on `canvas`.
         faint: "#7b828b",
         normal: "#3d434a",
-        critical: { DEFAULT: "#c0161c", soft: "#f6d5d6", ink: "#ffffff" },
+        critical: { DEFAULT: "#bd161c", soft: "#f6d5d6", ink: "#ffffff" },
         warning: { DEFAULT: "#e3a008", soft: "#faebc4", ink: "#1b1e22" },
         advisory: { DEFAULT: "#6d4fc2", soft: "#e4dcf6", ink: "#ffffff" },
       },
@@ -46,7 +50,7 @@ const config: Config = {
         ".shape-advisory": { clipPath: priorityShapes.advisory },
         ".hatch-stale": {
           backgroundImage:
-            "repeating-linear-gradient(135deg, transparent 0 6px, rgba(27,30,34,0.12) 6px 8px)",
+            `repeating-linear-gradient(135deg, transparent 0 6px, ${staleHatchInk} 6px 8px)`,
         },
       });
     }),

@@ -85,7 +85,7 @@ function ContactsSection({ data, loading }: { data: ContactsPageData | undefined
   const columns: DataColumn<ContactDto>[] = [
     { id: "name", header: "Name", sortValue: (c) => c.name, cell: (c) => <span className="font-semibold">{c.name}</span> },
     { id: "email", header: "E-mail", sortValue: (c) => c.email, cell: (c) => <span className="num">{c.email}</span> },
-    { id: "account", header: "Account", sortValue: (c) => c.userName ?? "", cell: (c) => c.userName ?? <span className="text-faint">—</span> },
+    { id: "account", header: "Account", sortValue: (c) => c.userName ?? "", cell: (c) => c.userName ?? <span className="text-muted">—</span> },
     {
       id: "active",
       header: "Receives mail",

@@ -203,7 +203,7 @@ export function TextField<V extends Values>({
         )}
       </div>
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}
@@ -250,7 +250,7 @@ export function SelectField<V extends Values>({
         ))}
       </select>
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}
@@ -279,7 +279,7 @@ export function CheckboxField<V extends Values>({ form, name, label, hint, class
         {label}
       </label>
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}
@@ -334,7 +334,7 @@ export function CheckboxGroupField<V extends Values>({
         </div>
       )}
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}

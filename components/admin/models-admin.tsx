@@ -28,7 +28,7 @@ export function ModelsAdmin() {
 
   const columns: DataColumn<CompressorModelDto>[] = [
     { id: "name", header: "Name", sortValue: (m) => m.name, cell: (m) => m.name },
-    { id: "maker", header: "Maker", sortValue: (m) => m.maker, cell: (m) => m.maker || <span className="text-faint">—</span> },
+    { id: "maker", header: "Maker", sortValue: (m) => m.maker, cell: (m) => m.maker || <span className="text-muted">—</span> },
     { id: "stages", header: "Stages", numeric: true, sortValue: (m) => m.stages, cell: (m) => m.stages },
     {
       id: "delivery",

@@ -25,7 +25,7 @@ export function SitesAdmin({ timeZones }: { timeZones: string[] }) {
     { id: "name", header: "Name", sortValue: (s) => s.name, cell: (s) => s.name },
     { id: "code", header: "Code", sortValue: (s) => s.code, cell: (s) => <span className="num">{s.code}</span> },
     { id: "timeZone", header: "Time zone", sortValue: (s) => s.timeZone, cell: (s) => s.timeZone },
-    { id: "address", header: "Address", sortValue: (s) => s.address, cell: (s) => s.address || <span className="text-faint">—</span> },
+    { id: "address", header: "Address", sortValue: (s) => s.address, cell: (s) => s.address || <span className="text-muted">—</span> },
     {
       id: "compressors",
       header: "Compressors",

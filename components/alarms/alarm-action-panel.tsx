@@ -140,7 +140,7 @@ export function AlarmActionPanel({
               commentError ? "border-ink" : "border-line"
             }`}
           />
-          <p id={hintId} className="text-xs text-faint">
+          <p id={hintId} className="text-xs text-muted">
             Required. It is kept with the alarm and in the event log.
           </p>
           <FieldError id={`${commentId}-error`} message={commentError} />

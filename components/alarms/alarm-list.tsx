@@ -82,7 +82,7 @@ function ActionButtons({
   onAction: (kind: AlarmActionKind, alarms: AlarmDto[]) => void;
 }) {
   const kinds = (["acknowledge", "shelve", "out-of-service", "return-to-service"] as const).filter((k) => actionApplies(k, a.state));
-  if (!kinds.length) return <span className="text-xs text-faint">—</span>;
+  if (!kinds.length) return <span className="text-xs text-muted">—</span>;
   return (
     <div className="flex flex-wrap gap-1">
       {kinds.map((k) => {

@@ -108,7 +108,7 @@ export function EventLog({
               className={`${field} w-full`}
               maxLength={200}
             />
-            <p id={`${ids}-q-hint`} className="text-xs text-faint">
+            <p id={`${ids}-q-hint`} className="text-xs text-muted">
               Every word must appear; the last may be the start of a word.
             </p>
           </div>
@@ -248,16 +248,16 @@ export function EventLog({
                   <td className="num px-2 py-1 whitespace-nowrap" title={isoWithOffset(e.ts, zone)}>
                     {formatZoned(e.ts, zone)}
                   </td>
-                  <td className="px-2 py-1 whitespace-nowrap">{e.priority ? <PriorityMark priority={e.priority} /> : <span className="text-faint">—</span>}</td>
+                  <td className="px-2 py-1 whitespace-nowrap">{e.priority ? <PriorityMark priority={e.priority} /> : <span className="text-muted">—</span>}</td>
                   <td className="px-2 py-1 whitespace-nowrap">{eventKindLabel(e.kind)}</td>
-                  <td className="px-2 py-1">{e.siteName ?? <span className="text-faint">—</span>}</td>
+                  <td className="px-2 py-1">{e.siteName ?? <span className="text-muted">—</span>}</td>
                   <td className="px-2 py-1 whitespace-nowrap">
                     {e.compressorId !== null ? (
                       <Link href={`/compressors/${e.compressorId}?at=${e.ts}`} title="The compressor at the time of this event">
                         {e.compressorName ?? `Compressor ${e.compressorId}`}
                       </Link>
                     ) : (
-                      <span className="text-faint">—</span>
+                      <span className="text-muted">—</span>
                     )}
                   </td>
                   <td className="px-2 py-1">
