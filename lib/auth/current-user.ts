@@ -1,5 +1,6 @@
 import { getServerSession } from "next-auth";
 import { forbidden, redirect } from "next/navigation";
+import { cache } from "react";
 import { getDb } from "@/db/client";
 import { can, denialReason, type Permission } from "@/shared/roles";
 import { authOptions } from "./options";
@@ -16,11 +17,14 @@ export class AccessError extends Error {
   }
 }
 
-/** The signed-in person, checked against the database on every call. */
-export async function currentUser(): Promise<CurrentUser | null> {
+/**
+ * The signed-in person, checked against the database once per request: React's cache() shares the answer between a
+ * layout and its page within one server render (route handlers and server actions call it once anyway).
+ */
+export const currentUser = cache(async (): Promise<CurrentUser | null> => {
   const session = await getServerSession(authOptions);
   return session ? resolveSession(getDb(), { uid: session.uid, sid: session.sid }) : null;
-}
+});
 
 export async function requireUser(): Promise<CurrentUser> {
   const user = await currentUser();
