@@ -12,5 +12,5 @@ export function proxy(request: NextRequest) {
 }
 
 export const config = {
-  matcher: ["/((?!api|login|display|_next|favicon.ico|fonts).*)"],
+  matcher: ["/((?!api|login|display|_next|favicon.ico|fonts|icon|manifest.webmanifest).*)"],
 };

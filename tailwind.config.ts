@@ -8,6 +8,8 @@ import plugin from "tailwindcss/plugin";
  *   warning   amber   triangle  "Warning"
  *   advisory  violet  diamond   "Advisory"
  * Offline / stale data is never coloured: it is grey with a diagonal hatch and the word "Offline" or "Stale".
+ * Two themes share these names: light (the default) and dark (`data-theme="dark"`, for control-room wall screens);
+ * their values are in app/globals.css and `shared/palette.ts`, whose contrast is checked by a test.
  */
 export const priorityShapes = {
   critical: "polygon(30% 0, 70% 0, 100% 30%, 100% 70%, 70% 100%, 30% 100%, 0 70%, 0 30%)",
@@ -15,26 +17,23 @@ export const priorityShapes = {
   advisory: "polygon(50% 0, 100% 50%, 50% 100%, 0 50%)",
 } as const;
 
-/** The stale hatch's stripes; text on a hatched panel is checked against them (tests/unit/contrast.test.ts). */
-export const staleHatchInk = "rgba(27,30,34,0.12)";
-
 const config: Config = {
   content: ["./app/**/*.{ts,tsx}", "./components/**/*.{ts,tsx}"],
   theme: {
     extend: {
+      // Values live in app/globals.css as CSS variables, one set per theme (light, and the dark control-room theme).
       colors: {
-        canvas: "#d9dbde",
-        panel: "#eceef0",
-        raised: "#f7f8f9",
-        line: "#b9bdc3",
-        ink: "#1b1e22",
-        muted: "#555b63",
-        // Lines and fills only, never text: no grey lighter than `muted` reaches 4.5 : 1 on `canvas`.
-        faint: "#7b828b",
-        normal: "#3d434a",
-        critical: { DEFAULT: "#bd161c", soft: "#f6d5d6", ink: "#ffffff" },
-        warning: { DEFAULT: "#e3a008", soft: "#faebc4", ink: "#1b1e22" },
-        advisory: { DEFAULT: "#6d4fc2", soft: "#e4dcf6", ink: "#ffffff" },
+        canvas: "var(--ak-canvas)",
+        panel: "var(--ak-panel)",
+        raised: "var(--ak-raised)",
+        line: "var(--ak-line)",
+        ink: "var(--ak-ink)",
+        muted: "var(--ak-muted)",
+        faint: "var(--ak-faint)",
+        normal: "var(--ak-normal)",
+        critical: { DEFAULT: "var(--ak-critical)", soft: "var(--ak-critical-soft)", ink: "var(--ak-critical-ink)" },
+        warning: { DEFAULT: "var(--ak-warning)", soft: "var(--ak-warning-soft)", ink: "var(--ak-warning-ink)" },
+        advisory: { DEFAULT: "var(--ak-advisory)", soft: "var(--ak-advisory-soft)", ink: "var(--ak-advisory-ink)" },
       },
       fontFamily: {
         mono: ['"Roboto Mono"', "ui-monospace", "monospace"],
@@ -50,7 +49,7 @@ const config: Config = {
         ".shape-advisory": { clipPath: priorityShapes.advisory },
         ".hatch-stale": {
           backgroundImage:
-            `repeating-linear-gradient(135deg, transparent 0 6px, ${staleHatchInk} 6px 8px)`,
+            "repeating-linear-gradient(135deg, transparent 0 6px, var(--ak-hatch) 6px 8px)",
         },
       });
     }),

@@ -7,6 +7,9 @@ import type { ReactNode } from "react";
 export const metadata: Metadata = {
   title: { default: "Airkeep", template: "%s · Airkeep" },
   description: "Monitoring for high-pressure breathing-air compressors",
+  manifest: "/manifest.webmanifest",
+  icons: { icon: "/icon.svg", apple: "/icon-192.png" },
+  appleWebApp: { capable: true, title: "Airkeep", statusBarStyle: "black" },
 };
 
 export const viewport: Viewport = { themeColor: "#d9dbde" };

@@ -205,7 +205,7 @@ function invalid(ids: readonly number[], reason: string): AlarmActionResult {
   return { done: [], refused: [...new Set(ids)].map((id) => ({ id, reason })) };
 }
 
-export function acknowledgeAlarms(db: Db, p: Scoped & { ids: number[]; comment: string }): AlarmActionResult {
+export function acknowledgeAlarms(db: Db, p: Scoped & { ids: number[]; comment?: string }): AlarmActionResult {
   const c = acknowledgeSchema.shape.comment.safeParse(p.comment);
   if (!c.success) return invalid(p.ids, c.error.issues[0]?.message ?? "Invalid comment");
   const comment = c.data;
@@ -218,7 +218,7 @@ export function acknowledgeAlarms(db: Db, p: Scoped & { ids: number[]; comment: 
     () => null,
     (row, to) => {
       db.update(alarms)
-        .set({ state: to, ackAt: now, ackBy: p.userId, ackComment: comment, updatedAt: now })
+        .set({ state: to, ackAt: now, ackBy: p.userId, ackComment: comment || null, updatedAt: now })
         .where(eq(alarms.id, row.id))
         .run();
       appendEvent(db, {

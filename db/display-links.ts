@@ -3,6 +3,8 @@ import { desc, eq, inArray } from "drizzle-orm";
 import type { DisplayLinkDto } from "@/shared/display-link-schema";
 import { writeAudit } from "./audit";
 import type { Db } from "./client";
+import type { Theme } from "@/shared/palette";
+import type { UnitPreference } from "@/shared/units";
 import { displayLinks, sites, users } from "./schema";
 
 // Display links: a wall screen opens /display/<token>. The token is shown once to the administrator who made it;
@@ -123,7 +125,7 @@ export function revokeDisplayLink(db: Db, id: number, actor: DisplayLinkActor, n
 }
 
 export type DisplayAccess =
-  | { status: "ok"; id: number; label: string; siteIds: number[] | null }
+  | { status: "ok"; id: number; label: string; siteIds: number[] | null; theme: Theme; units: UnitPreference }
   | { status: "revoked" }
   | { status: "unknown" };
 
@@ -140,6 +142,9 @@ export function resolveDisplayLink(db: Db, token: string | null | undefined, now
       siteIds: displayLinks.siteIds,
       revokedAt: displayLinks.revokedAt,
       lastUsedAt: displayLinks.lastUsedAt,
+      theme: displayLinks.theme,
+      pressureUnit: displayLinks.pressureUnit,
+      temperatureUnit: displayLinks.temperatureUnit,
     })
     .from(displayLinks)
     .where(eq(displayLinks.tokenHash, hashDisplayToken(token)))
@@ -149,5 +154,12 @@ export function resolveDisplayLink(db: Db, token: string | null | undefined, now
   if (row.lastUsedAt == null || now - row.lastUsedAt > TOUCH_EVERY_MS) {
     db.update(displayLinks).set({ lastUsedAt: now }).where(eq(displayLinks.id, row.id)).run();
   }
-  return { status: "ok", id: row.id, label: row.label, siteIds: row.siteIds && row.siteIds.length ? row.siteIds : null };
+  return {
+    status: "ok",
+    id: row.id,
+    label: row.label,
+    siteIds: row.siteIds && row.siteIds.length ? row.siteIds : null,
+    theme: row.theme,
+    units: { pressureUnit: row.pressureUnit, temperatureUnit: row.temperatureUnit },
+  };
 }

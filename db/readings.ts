@@ -44,15 +44,28 @@ const RAW_COLUMNS = [
   "hour_meter_h",
   "starts",
   "trip_code",
+  "implausible",
 ] as const;
 
-export type InsertResult = { inserted: number; duplicates: number };
+/**
+ * duplicates: the same reading (seq and ts) was already stored. conflicts: another reading (other seq) already holds
+ * that millisecond; the readings key is (compressor, ts), so the newcomer is not stored and must be counted.
+ */
+export type InsertResult = { inserted: number; duplicates: number; conflicts: number };
+
+export type StoredAround = {
+  at: number | null;
+  before: { seq: number; ts: number } | null;
+  after: { seq: number; ts: number } | null;
+};
 
 export type PruneOptions = { chunkRows?: number; maxRows?: number };
 
 export type ReadingStore = {
   /** Stores readings (raw unless keepRaw is false) and folds each new one into the 1-minute and 1-hour rollups. */
   insert(rows: readonly ReadingInput[], opts?: { keepRaw?: boolean }): InsertResult;
+  /** The seq of the raw reading stored at this millisecond, and the nearest stored readings before and after it. */
+  around(compressorId: number, ts: number): StoredAround;
   /** Deletes raw readings older than now - retentionMs in small transactions; rollups are kept. Returns rows deleted. */
   prune(now: number, retentionMs: number, opts?: PruneOptions): number;
 };
@@ -152,6 +165,16 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
   const insertRaw = sqlite.prepare(
     `INSERT OR IGNORE INTO readings (${RAW_COLUMNS.join(", ")}) VALUES (${RAW_COLUMNS.map(() => "?").join(", ")})`,
   );
+  const selectSeqAt = sqlite
+    .prepare("SELECT seq FROM readings WHERE compressor_id = ? AND ts = ?")
+    .pluck() as Statement<[number, number], number>;
+  type Point = { seq: number; ts: number };
+  const selectBefore = sqlite.prepare(
+    "SELECT seq, ts FROM readings WHERE compressor_id = ? AND ts < ? ORDER BY ts DESC LIMIT 1",
+  ) as Statement<[number, number], Point>;
+  const selectAfter = sqlite.prepare(
+    "SELECT seq, ts FROM readings WHERE compressor_id = ? AND ts > ? ORDER BY ts LIMIT 1",
+  ) as Statement<[number, number], Point>;
   const upsert1m = sqlite.prepare(rollupUpsertSql("readings_1m"));
   const upsert1h = sqlite.prepare(rollupUpsertSql("readings_1h"));
   const selectPrev = sqlite.prepare(
@@ -257,6 +280,7 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
 
     let inserted = 0;
     let duplicates = 0;
+    let conflicts = 0;
     for (const r of sorted) {
       if (keepRaw) {
         const res = insertRaw.run(
@@ -280,9 +304,11 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
           r.hourMeterH,
           r.starts,
           r.tripCode,
+          r.implausible ? JSON.stringify(r.implausible) : null,
         );
         if (res.changes === 0) {
-          duplicates++;
+          if (selectSeqAt.get(r.compressorId, r.ts) === r.seq) duplicates++;
+          else conflicts++;
           continue;
         }
         noteInBucket(r);
@@ -308,7 +334,7 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
     }
     for (const a of minute.values()) upsert1m.run(...accParams(a));
     for (const a of hour.values()) upsert1h.run(...accParams(a));
-    return { inserted, duplicates };
+    return { inserted, duplicates, conflicts };
   });
 
   const nextCompressor = sqlite.prepare(
@@ -322,11 +348,16 @@ export function createReadingStore(db: Db, options: { maxGapMs?: number } = {}):
 
   return {
     insert(rows, opts) {
-      if (rows.length === 0) return { inserted: 0, duplicates: 0 };
+      if (rows.length === 0) return { inserted: 0, duplicates: 0, conflicts: 0 };
       // Immediate: a deferred transaction that reads first fails outright (SQLITE_BUSY_SNAPSHOT) if another process
       // commits before its first write; waiting for the write lock up front lets the busy timeout handle it.
       return insertTx.immediate(rows, opts?.keepRaw ?? true);
     },
+    around: (compressorId, ts) => ({
+      at: selectSeqAt.get(compressorId, ts) ?? null,
+      before: selectBefore.get(compressorId, ts) ?? null,
+      after: selectAfter.get(compressorId, ts) ?? null,
+    }),
     prune(now, retentionMs, opts = {}) {
       const chunk = Math.max(1, opts.chunkRows ?? 5000);
       const maxRows = opts.maxRows ?? Number.POSITIVE_INFINITY;

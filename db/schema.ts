@@ -116,6 +116,13 @@ export const readings = sqliteTable(
     hourMeterH: real("hour_meter_h"),
     starts: integer("starts"),
     tripCode: integer("trip_code"),
+    // ---- Plausibility per model (sensor faults) ----
+    /**
+     * Pressures the reading reported beyond what its model can reach (bar, by field name, e.g. {"deliveryBar": 675}):
+     * a sensor fault. Those columns hold null, so trends, rollups and alarms never take them as pressures.
+     */
+    implausible: text("implausible", { mode: "json" }).$type<Record<string, number>>(),
+    // ---- end plausibility ----
   },
   (t) => [primaryKey({ columns: [t.compressorId, t.ts] })],
 );
@@ -314,6 +321,10 @@ export const displayLinks = sqliteTable("display_links", {
   createdAt: integer("created_at").notNull(),
   revokedAt: integer("revoked_at"),
   lastUsedAt: integer("last_used_at"),
+  /** How the wall screen shows: its theme and units, set per link (a control room far from the office's habits). */
+  theme: text("theme", { enum: ["light", "dark"] }).notNull().default("dark"),
+  pressureUnit: text("pressure_unit", { enum: ["bar", "psi", "MPa"] }).notNull().default("bar"),
+  temperatureUnit: text("temperature_unit", { enum: ["C", "F"] }).notNull().default("C"),
 });
 
 export type DisplayLinkRow = typeof displayLinks.$inferSelect;

@@ -13,7 +13,23 @@ export type Health = {
   /** Last counters the ingester reported (connection, message rate, rejects per reason); stale after 20 s. */
   ingester: ServiceStatus | null;
   broker: ServiceStatus | null;
+  /** What was turned away, by reason, side by side; each count runs from `since` (that process's start). */
+  refusals: Refusals;
 };
+
+export type ReasonCounts = { since: number | null; byReason: Record<string, number> };
+export type Refusals = { broker: ReasonCounts; ingester: ReasonCounts };
+
+function byPrefix(s: ServiceStatus | null, prefix: string): ReasonCounts {
+  const byReason: Record<string, number> = {};
+  for (const [k, v] of Object.entries(s?.counters ?? {})) if (k.startsWith(prefix)) byReason[k.slice(prefix.length)] = v;
+  return { since: s?.startedAt ?? null, byReason };
+}
+
+/** Broker refusals (`refused.*`) and ingester rejections (`reject.*`) from the services' status rows. */
+export function refusalsFrom(broker: ServiceStatus | null, ingester: ServiceStatus | null): Refusals {
+  return { broker: byPrefix(broker, "refused."), ingester: byPrefix(ingester, "reject.") };
+}
 
 export function readHealth(): Health {
   const time = Date.now();
@@ -32,6 +48,7 @@ export function readHealth(): Health {
       database: { ok: true, migrations: n, journalMode },
       ingester,
       broker,
+      refusals: refusalsFrom(broker, ingester),
     };
   } catch (e) {
     return {
@@ -41,6 +58,7 @@ export function readHealth(): Health {
       database: { ok: false, migrations: 0, journalMode: "", error: e instanceof Error ? e.message : String(e) },
       ingester: null,
       broker: null,
+      refusals: refusalsFrom(null, null),
     };
   }
 }

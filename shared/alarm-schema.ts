@@ -34,7 +34,14 @@ export type AlarmDto = {
 const comment = z.string().trim().min(3, "Say what you found or did (at least 3 characters)").max(500);
 const ids = z.array(z.number().int().positive()).min(1, "Choose at least one alarm").max(500);
 
-export const acknowledgeSchema = z.object({ ids, comment });
+// Acknowledging says "I have seen it": a comment helps but must not slow the on-call person down.
+const optionalComment = z
+  .string()
+  .trim()
+  .max(500)
+  .refine((v) => v === "" || v.length >= 3, "A comment, if you give one, needs at least 3 characters")
+  .default("");
+export const acknowledgeSchema = z.object({ ids, comment: optionalComment });
 export type AcknowledgeInput = z.infer<typeof acknowledgeSchema>;
 
 /** Shelving is time-limited; the longest allowed is 24 hours unless configured otherwise. */

@@ -136,7 +136,8 @@ export function reAlarmSentence(a: AlarmSentenceInput & { acknowledgedAgoMs: num
 const quote = (comment: string) => `“${comment.trim()}”`;
 
 export function acknowledgeSentence(a: AlarmSentenceInput & { actor: string; comment: string }): string {
-  return `${a.actor} acknowledged ${a.compressorName}: ${alarmTitle(a)} (${a.priority}): ${quote(a.comment)}`;
+  const base = `${a.actor} acknowledged ${a.compressorName}: ${alarmTitle(a)} (${a.priority})`;
+  return a.comment ? `${base}: ${quote(a.comment)}` : base;
 }
 
 export function shelveSentence(a: AlarmSentenceInput & { actor: string; comment: string; minutes: number }): string {

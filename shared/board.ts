@@ -183,7 +183,7 @@ export function finalStageC(live: Pick<LiveCompressor, "stageC"> | null | undefi
 /**
  * Display ranges and typical normal bands for values without a setpoint of their own. These are common practice
  * for multi-stage breathing-air compressors, recalled from memory, not from a maker's data: the maker's manual
- * governs for each machine. Thresholds (warning and trip levels) are set per compressor elsewhere.
+ * governs for each machine. Airkeep's alarm limits (warning and critical) are set on the thresholds page.
  */
 export const displayRanges = {
   stageC: { min: 0, max: 250, normal: { from: 40, to: 180 } },

@@ -18,6 +18,8 @@ export const deviceIdSchema = idPart;
 export const siteCodeSchema = idPart;
 
 const finiteIn = (min: number, max: number) => z.number().finite().min(min).max(max);
+/** Pressures have no ceiling here: what a compressor can reach depends on its model, judged by the ingester. */
+const pressureBar = () => z.number().finite().min(-1);
 const optionalIn = (min: number, max: number) => finiteIn(min, max).nullable().optional();
 
 export const telemetrySchema = z.strictObject({
@@ -28,9 +30,9 @@ export const telemetrySchema = z.strictObject({
   runState: runStateSchema,
   motorOn: z.boolean(),
   /** Delivery (final) pressure, bar gauge. */
-  deliveryBar: finiteIn(-1, 700),
+  deliveryBar: pressureBar(),
   /** Pressure after each stage where fitted, bar gauge; index 0 is stage 1. */
-  stageBar: z.array(finiteIn(-1, 700).nullable()).max(MAX_STAGES).optional(),
+  stageBar: z.array(pressureBar().nullable()).max(MAX_STAGES).optional(),
   /** Outlet temperature of each stage, °C. */
   stageC: z.array(finiteIn(-50, 350).nullable()).max(MAX_STAGES).optional(),
   oilBar: optionalIn(-1, 30),
@@ -103,6 +105,8 @@ export type ReadingInput = {
   hourMeterH: number | null;
   starts: number | null;
   tripCode: number | null;
+  /** Pressures withheld as beyond the model's reach (a sensor fault), by field name; see lib/ingester/plausibility.ts. */
+  implausible?: Record<string, number> | null;
 };
 
 export function telemetryToReading(compressorId: number, t: Telemetry): ReadingInput {

@@ -27,6 +27,8 @@ export type BackfillOptions = {
   faults?: readonly FaultSpec[];
   now?: number;
   progress?: boolean;
+  /** Called after each stored batch with readings written so far and in all. */
+  onProgress?: (done: number, total: number) => void;
   log?: (line: string) => void;
   /** Rows per store transaction. */
   batchRows?: number;
@@ -245,6 +247,7 @@ export function backfill(opts: BackfillOptions): BackfillResult {
         if (raw.length + old.length >= batchRows) {
           flush();
           bar?.update(done + (t - seg.fromMs) / intervalMs, { device: device.deviceId });
+          opts.onProgress?.(done + (t - seg.fromMs) / intervalMs, totalSteps);
         }
       }
       flush();
@@ -255,6 +258,7 @@ export function backfill(opts: BackfillOptions): BackfillResult {
   }
   bar?.update(Math.round(totalSteps));
   bar?.stop();
+  opts.onProgress?.(totalSteps, totalSteps);
   if (alarmEngine) acknowledgeHistory(opts.db, now - DAY_MS);
   return { devices: plans.map((p) => p.result), elapsedMs: performance.now() - t0, counters };
 }

@@ -1,10 +1,12 @@
 import { parseArgs } from "node:util";
 import { openDatabase } from "../db/client";
 import { backfill } from "./backfill";
+import { backfillProgress } from "./backfill-progress";
 import { defaultDevicesPath, defaultStatePath, readDevicesFile } from "./devices";
 import { faultKinds, parseFaultSpec } from "./model/faults";
 import { FleetPublisher } from "./publisher";
-import { readCounters, writeCounters } from "./state-file";
+import { demoOpening } from "./demo-opening";
+import { readCounters, writeCounters, type SavedCounters } from "./state-file";
 
 const HELP = `Airkeep simulator: publishes a fleet of simulated breathing-air compressors over MQTT, or writes their history.
 
@@ -24,6 +26,7 @@ Usage: tsx simulator/main.ts [options]
   --run-for <s>           stop after this many real seconds
   --backfill <span>       write history instead of publishing, e.g. 90d, 36h (raw readings within RETENTION_DAYS)
   --retention-days <n>    raw-reading retention for the backfill (default RETENTION_DAYS or 30)
+  --opening               play the demo's scripted first ten minutes (a fill and a cooling incident)
   --quiet                 log only errors and trips
 
 Environment: MQTT_URL (default mqtt://127.0.0.1:1883), DATABASE_URL, RETENTION_DAYS.`;
@@ -43,6 +46,7 @@ const { values: flags } = parseArgs({
     backfill: { type: "string" },
     "retention-days": { type: "string" },
     quiet: { type: "boolean", default: false },
+    opening: { type: "boolean", default: false },
     help: { type: "boolean", short: "h", default: false },
   },
   strict: true,
@@ -108,6 +112,7 @@ if (flags.backfill !== undefined) {
       faults,
       now,
       progress: process.stderr.isTTY === true,
+      onProgress: backfillProgress(db, log, { lines: process.stderr.isTTY !== true }),
       log,
     });
     let rows = 0;
@@ -136,6 +141,15 @@ if (flags.backfill !== undefined) {
   for (const f of faults) if (!known.has(f.deviceId)) fail(`--fault names unknown device ${f.deviceId}`);
   const url = process.env.MQTT_URL || "mqtt://127.0.0.1:1883";
   const quiet = flags.quiet;
+  const init = flags.fresh ? new Map<string, Partial<SavedCounters>>() : new Map<string, Partial<SavedCounters>>(readCounters(statePath));
+  const opening = flags.opening ? demoOpening(devices, now, process.env.NEXTAUTH_URL ?? "http://localhost:3000") : null;
+  if (opening) {
+    faults.push(...opening.faults);
+    for (const [id, c] of opening.init) init.set(id, { ...init.get(id), ...c });
+    for (const line of opening.story) log(line);
+  } else if (flags.opening) {
+    log("--opening needs the demo fleet (devices mb-main and hr-bay); publishing without it");
+  }
   const publisher = new FleetPublisher({
     url,
     devices,
@@ -145,7 +159,7 @@ if (flags.backfill !== undefined) {
     telemetryQos: flags.qos1 ? 1 : 0,
     faults,
     incidentsPerDay: positive("incidents", flags.incidents, 2, true),
-    init: flags.fresh ? new Map() : readCounters(statePath),
+    init,
     log: (line) => {
       if (!quiet || line.includes("TRIP")) log(line);
     },

@@ -1,11 +1,14 @@
 import Link from "next/link";
 import type { ReactNode } from "react";
 import { CriticalToast } from "@/components/alarms/critical-toast";
+import { HistoryNotice } from "@/components/history-notice";
 import { MainNav } from "@/components/main-nav";
 import { Providers } from "@/components/providers";
 import { SafetyNotice } from "@/components/safety-notice";
 import { SignOutButton } from "@/components/sign-out-button";
 import { UnitsPicker } from "@/components/units-picker";
+import { getDb } from "@/db/client";
+import { readBackfillStatus } from "@/db/history-status";
 import { pageUser } from "@/lib/auth/current-user";
 import { roleLabels } from "@/shared/roles";
 
@@ -27,8 +30,9 @@ export default async function SignedInLayout({ children }: { children: ReactNode
             <SignOutButton />
           </div>
         </header>
+        <HistoryNotice initial={readBackfillStatus(getDb())} />
         <main className="flex-1 px-4 py-4">{children}</main>
-        <SafetyNotice />
+        <SafetyNotice sticky compact />
         <CriticalToast />
       </div>
     </Providers>

@@ -1,8 +1,5 @@
 import type { Metadata } from "next";
 import type { ReactNode } from "react";
-import { Providers } from "@/components/providers";
-import { SAFETY_NOTICE } from "@/shared/safety";
-import { defaultUnits } from "@/shared/units";
 
 export const metadata: Metadata = {
   title: "Wall display",
@@ -11,23 +8,7 @@ export const metadata: Metadata = {
   referrer: "no-referrer",
 };
 
-/** Kiosk mode: no navigation, no sign-in; the board and the safety notice only. */
+/** Kiosk mode: no navigation, no sign-in; the page brings the board, its theme, units and the safety notice. */
 export default function DisplayLayout({ children }: { children: ReactNode }) {
-  return (
-    <Providers units={defaultUnits}>
-      <div className="flex min-h-screen flex-col">
-        <main className="flex-1 px-[1.2vw] py-[1vw]">{children}</main>
-        <p
-          role="note"
-          aria-label="Safety notice"
-          data-testid="safety-notice"
-          className="sticky bottom-0 border-t border-line bg-panel px-[1.2vw] py-[0.4vw] text-muted"
-          style={{ fontSize: "clamp(12px, 0.75vw, 36px)" }}
-        >
-          <strong className="text-ink">Safety: </strong>
-          {SAFETY_NOTICE}
-        </p>
-      </div>
-    </Providers>
-  );
+  return children;
 }

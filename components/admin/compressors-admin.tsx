@@ -313,9 +313,9 @@ function CompressorForm({
           label="Stop pressure"
           unit="bar"
           numeric
-          hint={model ? `The model is rated ${model.ratedPressureBar} bar.` : "At most the model's rated pressure."}
+          hint={`As set on the machine, recorded here for display; Airkeep never changes it. ${model ? `The model is rated ${model.ratedPressureBar} bar.` : "At most the model's rated pressure."}`}
         />
-        <TextField form={form} name="restartPressureBar" label="Restart pressure" unit="bar" numeric hint="Below the stop pressure." />
+        <TextField form={form} name="restartPressureBar" label="Restart pressure" unit="bar" numeric hint="As set on the machine, recorded here for display; below the stop pressure." />
         <TextField form={form} name="bankVolumeL" label="Bank volume" unit="L" numeric hint="Water capacity of the storage bank; 0 if none." />
         <div className="space-y-2 md:col-span-3">
           <FormAlert message={form.formError} />

@@ -17,6 +17,9 @@ import type { AlarmActionKind } from "./format";
 
 export const shelveChoices = [15, 30, 60, 120, 240, 480, 720, 1440].filter((m) => m <= MAX_SHELVE_MINUTES);
 
+/** One tap fills the comment: what on-call people most often say when they acknowledge from a phone. */
+export const quickPhrases = ["On my way", "Checking remotely", "Known cause, being handled", "Station informed"] as const;
+
 type Values = { comment: string; minutes: string };
 
 const config: Record<
@@ -25,6 +28,7 @@ const config: Record<
     title: (n: number) => string;
     submit: string;
     commentLabel: string;
+    commentRequired: boolean;
     schema: z.ZodType;
     toInput: (ids: number[], v: Values) => unknown;
     action: (input: unknown) => Promise<ActionResult<AlarmActionOutcome>>;
@@ -34,7 +38,8 @@ const config: Record<
   acknowledge: {
     title: (n) => (n === 1 ? "Acknowledge alarm" : `Acknowledge ${n} alarms`),
     submit: "Acknowledge",
-    commentLabel: "Comment (what you found or did)",
+    commentLabel: "Comment (optional: what you found or did)",
+    commentRequired: false,
     schema: acknowledgeSchema,
     toInput: (ids, v) => ({ ids, comment: v.comment }),
     action: acknowledgeAlarmsAction,
@@ -44,6 +49,7 @@ const config: Record<
     title: (n) => (n === 1 ? "Shelve alarm" : `Shelve ${n} alarms`),
     submit: "Shelve",
     commentLabel: "Comment (why it may be set aside)",
+    commentRequired: true,
     schema: shelveSchema,
     toInput: (ids, v) => ({ ids, comment: v.comment, minutes: v.minutes }),
     action: shelveAlarmsAction,
@@ -53,6 +59,7 @@ const config: Record<
     title: () => "Take alarm out of service",
     submit: "Take out of service",
     commentLabel: "Reason (e.g. sensor awaiting replacement)",
+    commentRequired: true,
     schema: outOfServiceSchema,
     toInput: (ids, v) => ({ id: ids[0], reason: v.comment }),
     action: outOfServiceAction,
@@ -62,6 +69,7 @@ const config: Record<
     title: () => "Return alarm to service",
     submit: "Return to service",
     commentLabel: "Comment (what was put right)",
+    commentRequired: true,
     schema: returnToServiceSchema,
     toInput: (ids, v) => ({ id: ids[0], comment: v.comment }),
     action: returnToServiceAction,
@@ -131,7 +139,7 @@ export function AlarmActionPanel({
             name="comment"
             rows={2}
             maxLength={500}
-            required
+            required={c.commentRequired}
             value={form.values.comment}
             onChange={(e) => form.set("comment", e.target.value)}
             aria-invalid={commentError ? true : undefined}
@@ -140,8 +148,17 @@ export function AlarmActionPanel({
               commentError ? "border-ink" : "border-line"
             }`}
           />
+          {kind === "acknowledge" && (
+            <div className="mt-1 flex flex-wrap gap-1" role="group" aria-label="Quick phrases">
+              {quickPhrases.map((phrase) => (
+                <button key={phrase} type="button" className={buttonClass.small} onClick={() => form.set("comment", phrase)}>
+                  {phrase}
+                </button>
+              ))}
+            </div>
+          )}
           <p id={hintId} className="text-xs text-muted">
-            Required. It is kept with the alarm and in the event log.
+            {c.commentRequired ? "Required. " : ""}It is kept with the alarm and in the event log.
           </p>
           <FieldError id={`${commentId}-error`} message={commentError} />
           <FieldError id={`${commentId}-ids-error`} message={idsError} />

@@ -16,7 +16,9 @@ import { formatZoned, offsetLabel } from "@/shared/zoned-time";
 import { noteServerTime, useServerNow } from "../live/server-clock";
 import { alarmQueries, alarmsKey, applyAlarmUpdates } from "../queries/alarms";
 import { useUnits } from "../use-units";
+import { cautionsFor } from "@/shared/notify-text";
 import { AlarmActionPanel } from "./alarm-action-panel";
+import { AlarmMiniTrend } from "./alarm-mini-trend";
 import { actionApplies, formatAlarmAge, valueVsLimit, type AlarmActionKind } from "./format";
 import { alarmListQuery, type AlarmListParams } from "@/shared/alarm-list-params";
 import { PriorityMark, priorityWords } from "./priority-mark";
@@ -137,7 +139,8 @@ export function AlarmList({
   const [refusals, setRefusals] = useState<{ id: number; reason: string; name: string }[]>([]);
 
   const list = useQuery(alarmQueries.list());
-  const highlighted = useQuery({ ...alarmQueries.one(highlightId ?? 0), enabled: highlightId !== null });
+  const highlightInList = highlightId !== null && (list.data?.alarms ?? []).some((a) => a.id === highlightId);
+  const highlighted = useQuery({ ...alarmQueries.one(highlightId ?? 0), enabled: highlightId !== null && list.isSuccess && !highlightInList });
   useEffect(() => {
     if (list.data) noteServerTime(list.data.at);
   }, [list.data]);
@@ -169,14 +172,12 @@ export function AlarmList({
   }
 
   // An e-mail's link: bring the alarm into view once, and give it focus.
-  const focused = useRef(false);
+  const focused = useRef<number | null>(null);
   useEffect(() => {
-    if (focused.current || highlightId === null || !list.data) return;
-    const row = document.querySelector<HTMLElement>(`[data-alarm-id="${highlightId}"]`);
-    const card = document.getElementById(`${baseId}-highlight`);
-    const target = row ?? card;
+    if (focused.current === highlightId || highlightId === null || !list.data) return;
+    const target = document.getElementById(`${baseId}-highlight`);
     if (target) {
-      focused.current = true;
+      focused.current = highlightId;
       target.scrollIntoView({ block: "center" });
       target.focus({ preventScroll: true });
     }
@@ -300,9 +301,21 @@ export function AlarmList({
     },
   ];
 
+  // The panel opens under the linked alarm when it acts on that one alarm, so a phone needs no scrolling.
+  const pendingOnDetail = pending !== null && pending.alarms.length === 1 && pending.alarms[0]!.id === highlightId;
+  const panel = pending && (
+    <AlarmActionPanel
+      key={`${pending.kind}-${pending.alarms.map((a) => a.id).join(",")}`}
+      kind={pending.kind}
+      ids={pending.alarms.map((a) => a.id)}
+      names={pending.alarms.map(describe)}
+      onDone={onDone}
+      onCancel={() => setPending(null)}
+    />
+  );
+
   const counts = priorities.map((p) => ({ p, n: shown.filter((a) => a.priority === p).length })).filter((x) => x.n > 0);
   const compressorOptions = compressors.filter((c) => filter.site === undefined || c.siteId === filter.site);
-  const highlightInList = highlightId !== null && all.some((a) => a.id === highlightId);
   const selectionKinds = (["acknowledge", "shelve"] as const).map((k) => ({
     kind: k,
     alarms: selectedShown.filter((a) => actionApplies(k, a.state)),
@@ -366,11 +379,11 @@ export function AlarmList({
         </ul>
       )}
 
-      {highlightId !== null && !highlightInList && (
-        <HighlightCard
+      {highlightId !== null && (
+        <AlarmDetail
           id={`${baseId}-highlight`}
-          alarm={highlighted.data?.alarm ?? null}
-          missing={highlighted.isError}
+          alarm={all.find((a) => a.id === highlightId) ?? highlighted.data?.alarm ?? null}
+          missing={!highlightInList && highlighted.isError}
           now={now}
           units={units}
           role={role}
@@ -378,8 +391,10 @@ export function AlarmList({
           onAction={onAction}
         />
       )}
+      {pending && pendingOnDetail && panel}
+      {pendingOnDetail && <StatusLine message={status} />}
 
-      <div className="flex flex-wrap items-center gap-2" aria-label="Selected alarms" role="group">
+      <div className="hidden flex-wrap items-center gap-2 sm:flex" aria-label="Selected alarms" role="group">
         <span className="num text-sm text-muted">{selectedShown.length} selected</span>
         {selectionKinds.map(({ kind, alarms }) => {
           const permission = actionPermission[kind];
@@ -401,17 +416,8 @@ export function AlarmList({
         })}
       </div>
 
-      {pending && (
-        <AlarmActionPanel
-          key={`${pending.kind}-${pending.alarms.map((a) => a.id).join(",")}`}
-          kind={pending.kind}
-          ids={pending.alarms.map((a) => a.id)}
-          names={pending.alarms.map(describe)}
-          onDone={onDone}
-          onCancel={() => setPending(null)}
-        />
-      )}
-      <StatusLine message={status} />
+      {pending && !pendingOnDetail && panel}
+      {!pendingOnDetail && <StatusLine message={status} />}
       {refusals.length > 0 && (
         <div role="alert" className="rounded border-2 border-ink bg-raised px-2 py-1.5 text-sm">
           <p className="font-semibold">Not changed:</p>
@@ -425,6 +431,8 @@ export function AlarmList({
         </div>
       )}
 
+      <AlarmCards alarms={shown} now={now} units={units} highlightId={highlightId} loading={list.isPending} emptyText={all.length ? "No alarm matches these filters." : "No alarms: every alarm is back to normal."} />
+      <div className="hidden sm:block">
       <DataTable
         caption="Alarms not back to normal, critical first, then newest"
         rows={shown}
@@ -443,12 +451,63 @@ export function AlarmList({
           className: a.id === highlightId ? "bg-panel outline-3 -outline-offset-3 outline-ink" : "",
         })}
       />
+      </div>
     </div>
   );
 }
 
-/** The alarm an e-mail linked to, when it is not on the list (back to normal, or outside the filters). */
-function HighlightCard({
+/** Below 640 px the list is a column of cards; a tap opens the alarm at the top of the page with its actions. */
+function AlarmCards({
+  alarms,
+  now,
+  units,
+  highlightId,
+  loading,
+  emptyText,
+}: {
+  alarms: AlarmDto[];
+  now: number;
+  units: UnitPreference;
+  highlightId: number | null;
+  loading: boolean;
+  emptyText: string;
+}) {
+  if (loading) return <p className="text-muted sm:hidden">Loading alarms…</p>;
+  if (!alarms.length) return <p className="text-muted sm:hidden">{emptyText}</p>;
+  return (
+    <ul className="space-y-2 sm:hidden" aria-label="Alarms not back to normal, critical first, then newest">
+      {alarms.map((a) => (
+        <li key={a.id}>
+          <Link
+            href={`/alarms?id=${a.id}`}
+            data-testid="alarm-card"
+            data-alarm-id={a.id}
+            data-state={a.state}
+            aria-current={a.id === highlightId ? "true" : undefined}
+            className={`block rounded border bg-raised p-2 text-ink no-underline ${a.id === highlightId ? "border-2 border-ink" : "border-line"}`}
+          >
+            <div className="flex items-center justify-between gap-2">
+              <PriorityMark priority={a.priority} chip />
+              <span className="num text-sm font-semibold">{formatAlarmAge(now - a.raisedAt)}</span>
+            </div>
+            <p className="mt-1 font-semibold">{a.title}</p>
+            <p className="text-sm">
+              {a.compressorName} · <span className="text-muted">{a.siteName}</span>
+            </p>
+            {valueVsLimit(a, units) && <p className="num text-sm">{valueVsLimit(a, units)}</p>}
+            <p className="text-sm">{stateLabels[a.state]}</p>
+          </Link>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+/**
+ * The alarm an e-mail linked to, at the top of the page: what, where, how far past its limit, how long, the cautions
+ * that fit it and the hour around it, with its actions one tap away (large on a phone).
+ */
+function AlarmDetail({
   id,
   alarm,
   missing,
@@ -467,27 +526,31 @@ function HighlightCard({
   reasonIds: Record<Permission, string>;
   onAction: (kind: AlarmActionKind, alarms: AlarmDto[]) => void;
 }) {
+  const cautionList = alarm ? cautionsFor(alarm) : [];
   return (
-    <section id={id} tabIndex={-1} aria-label="Linked alarm" className="rounded border-2 border-ink bg-raised p-3" data-testid="alarm-highlight">
+    <section id={id} tabIndex={-1} aria-label="Linked alarm" className="space-y-2 rounded border-2 border-ink bg-raised p-3" data-testid="alarm-highlight">
       {missing ? (
         <p>This alarm does not exist or is not in your sites.</p>
       ) : !alarm ? (
         <p className="text-muted">Loading the linked alarm…</p>
       ) : (
-        <div className="space-y-1">
+        <>
           <div className="flex flex-wrap items-center gap-2">
             <PriorityMark priority={alarm.priority} chip />
-            <span className="font-semibold">{alarm.title}</span>
-            <span>
-              on <Link href={`/compressors/${alarm.compressorId}`}>{alarm.compressorName}</Link>, {alarm.siteName}
-            </span>
+            <h2 className="text-lg font-semibold">{alarm.title}</h2>
           </div>
+          <p>
+            <Link href={`/compressors/${alarm.compressorId}`} className="font-medium">
+              {alarm.compressorName}
+            </Link>
+            , {alarm.siteName}
+          </p>
           <p className="text-sm">
             <span className="num">{valueVsLimit(alarm, units)}</span> · raised{" "}
             <span className="num">
               {formatZoned(alarm.raisedAt, alarm.timeZone)} {offsetLabel(alarm.raisedAt, alarm.timeZone)}
             </span>{" "}
-            ({formatAlarmAge(now - alarm.raisedAt)} ago)
+            (<span className="num" data-testid="alarm-detail-age">{formatAlarmAge(now - alarm.raisedAt)}</span> ago)
             {alarm.clearedAt && (
               <>
                 {" "}
@@ -496,11 +559,21 @@ function HighlightCard({
             )}
           </p>
           <StateCell a={alarm} />
-          <ActionButtons a={alarm} role={role} reasonIds={reasonIds} onAction={onAction} />
+          <div className="[&_button]:min-h-11 [&_button]:px-4 [&_button]:text-base sm:[&_button]:min-h-0 sm:[&_button]:px-2 sm:[&_button]:text-xs" data-testid="alarm-detail-actions">
+            <ActionButtons a={alarm} role={role} reasonIds={reasonIds} onAction={onAction} />
+          </div>
+          {cautionList.length > 0 && (
+            <ul className="space-y-1 border-l-4 border-ink pl-3 text-sm" data-testid="alarm-cautions" aria-label="Cautions">
+              {cautionList.map((c) => (
+                <li key={c}>{c}</li>
+              ))}
+            </ul>
+          )}
+          <AlarmMiniTrend alarm={alarm} />
           <p className="text-sm">
             <Link href={`/events?compressor=${alarm.compressorId}`}>Events of {alarm.compressorName}</Link>
           </p>
-        </div>
+        </>
       )}
     </section>
   );

@@ -1,9 +1,10 @@
 "use client";
 
 import { useQuery, useQueryClient } from "@tanstack/react-query";
-import { useCallback, useState } from "react";
+import { useCallback, useEffect, useRef, useState, type RefObject } from "react";
 import { classifyCondition, stateWords, type BoardData, type BoardSite, type StateWord } from "@/shared/board";
 import type { LiveMessage } from "@/shared/live";
+import type { Theme } from "@/shared/palette";
 import type { UnitPreference } from "@/shared/units";
 import { useServerNow } from "../live/server-clock";
 import { liveStatusText, useLive, type LiveState } from "../live/use-live";
@@ -14,6 +15,9 @@ import { useUnits } from "../use-units";
 import { CompressorTile } from "./compressor-tile";
 import { DisplayRevoked } from "./display-revoked";
 import { siteClock } from "./format";
+import { useFitFont } from "./use-fit-font";
+import { useWakeLock } from "./use-wake-lock";
+import { SafetyNotice } from "../safety-notice";
 
 /** Board text scales with the viewport so the same layout reads across a room at 1080p and at 4K. */
 const BOARD_FONT = "clamp(13px, 0.95vw, 46px)";
@@ -114,8 +118,12 @@ function SiteSection({
  * The board: every site in scope with its local time, every compressor as a tile. Values come prefetched from the
  * server, then the live socket keeps them current; a stale or offline compressor is shown as such.
  */
-export function Board({ source, title }: { source: BoardSource; title: string }) {
+export function Board({ source, title, theme: linkTheme }: { source: BoardSource; title: string; theme?: Theme }) {
   const client = useQueryClient();
+  const rootRef = useRef<HTMLDivElement>(null);
+  const fitRef = useRef<HTMLDivElement>(null);
+  const fullscreen = useFullscreen(rootRef);
+  const [chosenTheme, setTheme] = useBoardTheme(linkTheme);
   const units = useUnits();
   const onMessage = useCallback((msg: LiveMessage) => applyLiveMessage(client, msg), [client]);
   const [revoked, setRevoked] = useState(false);
@@ -137,39 +145,106 @@ export function Board({ source, title }: { source: BoardSource; title: string })
   const linkGone = kiosk && (refusedStatus === 410 || refusedStatus === 404);
   // A revoked wall screen drops its socket and stops polling: it shows the revoked page and nothing else.
   if (linkGone && !revoked) setRevoked(true);
+  // On a wall (the kiosk, or the board in full screen) everything fits one screen, stays awake and shows the notice.
+  const wall = kiosk || fullscreen.active;
+  const wakeLock = useWakeLock(wall);
+  const fitted = useFitFont(fitRef, wall && !linkGone && !revoked, `${board.data?.compressors.length ?? 0}:${board.data?.sites.length ?? 0}`);
   if (linkGone || revoked) return <DisplayRevoked />;
 
   return (
-    <div style={{ fontSize: BOARD_FONT }} className="space-y-[1em]" data-testid="board">
-      <div className="flex flex-wrap items-center gap-x-[1em] gap-y-[0.3em]">
-        <h1 className="text-[1.5em] font-semibold">{title}</h1>
-        <ConnectionStatus live={live} />
-        {board.data && <Summary data={board.data} now={now} />}
+    <div
+      ref={rootRef}
+      data-theme={chosenTheme}
+      data-testid="board-root"
+      data-wall={wall || undefined}
+      data-wake-lock={wall ? wakeLock : undefined}
+      className={wall ? "flex h-dvh flex-col bg-canvas text-ink" : "bg-canvas text-ink"}
+    >
+      <div
+        ref={fitRef}
+        style={{ fontSize: wall ? (fitted === null ? BOARD_FONT : `${fitted}px`) : BOARD_FONT }}
+        className={wall ? "min-h-0 flex-1 space-y-[1em] overflow-hidden px-[1.2vw] py-[1vw]" : "space-y-[1em]"}
+        data-testid="board"
+        data-font-px={fitted ?? undefined}
+      >
+        <div className="flex flex-wrap items-center gap-x-[1em] gap-y-[0.3em]">
+          <h1 className="text-[1.5em] font-semibold">{title}</h1>
+          <ConnectionStatus live={live} />
+          {board.data && <Summary data={board.data} now={now} />}
+          <div className="no-print ml-auto flex items-center gap-[0.5em]">
+            {!linkTheme && (
+              <button type="button" className={toolClass} onClick={() => setTheme(chosenTheme === "dark" ? "light" : "dark")} data-testid="board-theme">
+                {chosenTheme === "dark" ? "Light theme" : "Dark theme"}
+              </button>
+            )}
+            {fullscreen.supported && (
+              <button type="button" className={toolClass} onClick={fullscreen.toggle} data-testid="board-fullscreen">
+                {fullscreen.active ? "Leave full screen" : "Full screen"}
+              </button>
+            )}
+          </div>
+        </div>
+        {live.status === "refused" && !kiosk && (
+          <p role="alert" className="text-ink">
+            Live values are not available to this account. Values shown are from the last page load.
+          </p>
+        )}
+        {board.error && !board.data && (
+          <p role="alert" className="text-ink">
+            The board could not be loaded: {board.error.message}
+          </p>
+        )}
+        {board.data && board.data.sites.length === 0 && <p className="text-muted">No sites to show.</p>}
+        <div className="flex flex-wrap gap-x-[1.5em] gap-y-[1em]">
+          {board.data?.sites.map((site) => (
+            <SiteSection
+              key={site.id}
+              site={site}
+              data={board.data}
+              now={now}
+              units={units}
+              linkable={!kiosk}
+              alarmCounts={alarmCounts.data?.counts}
+            />
+          ))}
+        </div>
       </div>
-      {live.status === "refused" && !kiosk && (
-        <p role="alert" className="text-ink">
-          Live values are not available to this account. Values shown are from the last page load.
-        </p>
-      )}
-      {board.error && !board.data && (
-        <p role="alert" className="text-ink">
-          The board could not be loaded: {board.error.message}
-        </p>
-      )}
-      {board.data && board.data.sites.length === 0 && <p className="text-muted">No sites to show.</p>}
-      <div className="flex flex-wrap gap-x-[1.5em] gap-y-[1em]">
-        {board.data?.sites.map((site) => (
-          <SiteSection
-            key={site.id}
-            site={site}
-            data={board.data}
-            now={now}
-            units={units}
-            linkable={!kiosk}
-            alarmCounts={alarmCounts.data?.counts}
-          />
-        ))}
-      </div>
+      {wall && <SafetyNotice compact />}
     </div>
   );
+}
+
+const toolClass = "rounded-[0.2em] border border-line bg-raised px-[0.6em] py-[0.15em] text-[0.8em] text-ink hover:bg-panel";
+
+/** The board's own theme on a signed-in screen: remembered in this browser; a display link's theme is fixed. */
+function useBoardTheme(fixed: Theme | undefined): [Theme, (t: Theme) => void] {
+  const [chosen, setChosen] = useState<Theme>("light");
+  useEffect(() => {
+    if (fixed) return;
+    const saved = window.localStorage.getItem(THEME_KEY);
+    if (saved === "dark" || saved === "light") setChosen(saved);
+  }, [fixed]);
+  const set = useCallback((t: Theme) => {
+    setChosen(t);
+    window.localStorage.setItem(THEME_KEY, t);
+  }, []);
+  return [fixed ?? chosen, set];
+}
+const THEME_KEY = "airkeep.board-theme";
+
+/** Full screen for the board element (Fullscreen API), so a supervisor's browser becomes a wall screen. */
+function useFullscreen(ref: RefObject<HTMLElement | null>) {
+  const [active, setActive] = useState(false);
+  const [supported, setSupported] = useState(false);
+  useEffect(() => {
+    setSupported(document.fullscreenEnabled === true);
+    const onChange = () => setActive(document.fullscreenElement !== null && document.fullscreenElement === ref.current);
+    document.addEventListener("fullscreenchange", onChange);
+    return () => document.removeEventListener("fullscreenchange", onChange);
+  }, [ref]);
+  const toggle = useCallback(() => {
+    if (document.fullscreenElement) void document.exitFullscreen();
+    else void ref.current?.requestFullscreen();
+  }, [ref]);
+  return { active, supported, toggle };
 }

@@ -184,7 +184,7 @@ export function CompressorLive({ id }: { id: number }) {
             q={delivery}
             current={current}
             testId="delivery"
-            note={<>Band 0 to rated {rated} {pressureLabel(p)}; R restart {restart}, S stop {stop}. {cautions.cylinderFill}</>}
+            note={<>Band 0 to rated {rated} {pressureLabel(p)}; R restart {restart}, S stop {stop}, as set on the machine and recorded here for display. {cautions.cylinderFill}</>}
           >
             <Band
               label="Delivery pressure"

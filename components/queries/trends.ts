@@ -27,6 +27,16 @@ export const trendQueries = {
       refetchInterval: trendRefreshMs(span),
       placeholderData: keepPreviousData,
     }),
+  /** An hour of one alarm's signal around the time it was raised (`finalStageC` means the last fitted stage). */
+  around: (compressorId: number, signal: TrendSignal | "finalStageC", raisedAt: number) => {
+    const end = raisedAt + 30 * 60_000;
+    return queryOptions({
+      queryKey: ["compressor", compressorId, "trend-around", signal, end],
+      queryFn: () => getJson<TrendResponse>(`/api/compressors/${compressorId}/trend?signal=${signal}&span=1h&end=${end}`),
+      staleTime: 15_000,
+      refetchInterval: (q) => (q.state.data && q.state.data.to < Date.now() - 60_000 ? false : 15_000),
+    });
+  },
   /** Comms, state-change and trip events of one compressor, newest first. */
   events: (compressorId: number) =>
     queryOptions({

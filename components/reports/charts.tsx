@@ -2,7 +2,10 @@
 
 import { useRouter } from "next/navigation";
 import { Bar, BarChart, CartesianGrid, Cell, ComposedChart, Legend, Line, ResponsiveContainer, Tooltip, XAxis, YAxis } from "recharts";
-import { eventsHref, formatHours, type CauseRow, type DailyRow } from "@/shared/availability";
+import type { AlarmLoadFigures } from "@/shared/alarm-load";
+import type { Priority } from "@/shared/alarm-rules";
+import { eventsHref, formatHours, type CauseRow, type ComparisonRow, type DailyRow } from "@/shared/availability";
+import { priorityWord } from "@/shared/notify-text";
 import { HatchDefs, stateFills, stateLabels, type ScopeFilter } from "./parts";
 
 const tick = { fontSize: 12, fill: "#555b63", fontFamily: "Roboto Mono, monospace" };
@@ -103,6 +106,85 @@ export function CauseChart({ rows, scope, span }: { rows: readonly CauseRow[]; s
           >
             {data.map((d) => (
               <Cell key={d.key} fill={d.fill} stroke="#3d434a" strokeWidth={d.kind === "nodata" ? 1 : 0} />
+            ))}
+          </Bar>
+        </BarChart>
+      </ResponsiveContainer>
+    </div>
+  );
+}
+
+type MonthPoint = { month: string; availability: number | null; alarmsPerHour: number | null };
+
+/** The 12 months side by side: availability (a gap where a month has no data, never 0 %) and alarms per hour. */
+export function ComparisonChart({ rows, height = 240 }: { rows: readonly ComparisonRow[]; height?: number }) {
+  const data: MonthPoint[] = rows.map((r) => ({
+    month: r.month,
+    availability: r.figures.availability == null ? null : r.figures.availability * 100,
+    alarmsPerHour: r.alarmsPerHour,
+  }));
+  if (!data.length) return null;
+  return (
+    <div style={{ height }} data-testid="comparison-chart" role="img" aria-label="Availability and alarms per hour by month">
+      <ResponsiveContainer width="100%" height="100%">
+        <ComposedChart data={data} margin={{ top: 8, right: 8, bottom: 4, left: 4 }}>
+          <CartesianGrid stroke="#b9bdc3" strokeDasharray="2 4" vertical={false} />
+          <XAxis dataKey="month" tick={tick} interval={0} tickFormatter={(m: string) => m.slice(2)} />
+          <YAxis yAxisId="pct" domain={[0, 100]} tick={tick} width={40} label={{ value: "%", angle: -90, position: "insideLeft", fill: "#555b63", fontSize: 12 }} />
+          <YAxis yAxisId="rate" orientation="right" tick={tick} width={48} label={{ value: "alarms/h", angle: 90, position: "insideRight", fill: "#555b63", fontSize: 12 }} />
+          <Tooltip
+            contentStyle={{ fontFamily: "Roboto Mono, monospace", fontSize: 12 }}
+            formatter={(value, name) => {
+              if (value == null) return ["no data", String(name)];
+              const v = Number(value);
+              return name === "Availability" ? [`${v.toFixed(1)} %`, name] : [`${v.toFixed(2)} per hour`, String(name)];
+            }}
+          />
+          <Legend wrapperStyle={{ fontSize: 12 }} formatter={(value) => <span style={{ color: "#1b1e22" }}>{value}</span>} />
+          <Bar yAxisId="rate" dataKey="alarmsPerHour" name="Alarms per hour" fill="#b9bdc3" stroke="#3d434a" isAnimationActive={false} />
+          <Line yAxisId="pct" dataKey="availability" name="Availability" stroke="#1b1e22" strokeWidth={2} dot={{ r: 3 }} isAnimationActive={false} connectNulls={false} />
+        </ComposedChart>
+      </ResponsiveContainer>
+    </div>
+  );
+}
+
+const priorityFill: Record<Priority, string> = { critical: "#bd161c", warning: "#e3a008", advisory: "#6d4fc2" };
+
+/** A site's alarms by priority, each bar labelled with its word and share, so the split reads without colour. */
+export function PrioritySplitChart({ figures, height = 132 }: { figures: AlarmLoadFigures; height?: number }) {
+  const order: Priority[] = ["critical", "warning", "advisory"];
+  const data = order.map((p) => ({
+    priority: priorityWord[p],
+    key: p,
+    alarms: figures.byPriority[p],
+    share: figures.priorityShare ? figures.priorityShare[p] : null,
+  }));
+  if (figures.alarms === 0) return <p className="text-sm text-muted">No alarms in this period.</p>;
+  return (
+    <div style={{ height }} data-testid={`priority-chart-${figures.siteId}`} role="img" aria-label="Alarms by priority">
+      <ResponsiveContainer width="100%" height="100%">
+        <BarChart data={data} layout="vertical" margin={{ top: 4, right: 72, bottom: 4, left: 4 }}>
+          <CartesianGrid stroke="#b9bdc3" strokeDasharray="2 4" horizontal={false} />
+          <XAxis type="number" tick={tick} allowDecimals={false} />
+          <YAxis type="category" dataKey="priority" width={80} tick={{ ...tick, fontFamily: "inherit" }} />
+          <Tooltip contentStyle={{ fontFamily: "Roboto Mono, monospace", fontSize: 12 }} formatter={(value) => [String(value), "Alarms"]} />
+          <Bar
+            dataKey="alarms"
+            name="Alarms"
+            isAnimationActive={false}
+            label={{
+              position: "right",
+              fontSize: 12,
+              fill: "#1b1e22",
+              formatter: (v: unknown) => {
+                const n = Number(v);
+                return figures.alarms > 0 ? `${n} (${((n / figures.alarms) * 100).toFixed(0)} %)` : String(n);
+              },
+            }}
+          >
+            {data.map((d) => (
+              <Cell key={d.key} fill={priorityFill[d.key]} stroke="#3d434a" />
             ))}
           </Bar>
         </BarChart>

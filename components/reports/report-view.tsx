@@ -6,7 +6,7 @@ import { useId } from "react";
 import { reportHref, type MonthlyReport } from "@/shared/availability";
 import { monthLabel } from "@/shared/month";
 import { reportQueries } from "../queries/reports";
-import { CauseChart, DailyChart } from "./charts";
+import { CauseChart, ComparisonChart, DailyChart, PrioritySplitChart } from "./charts";
 import { Definitions, HeadlineGrid, PeriodLine, reportSpan, scopeFilterOf } from "./parts";
 import {
   AvailabilityTable,
@@ -112,7 +112,10 @@ export function ReportView({ month, scope, options, latestMonth }: { month: stri
         note="The 12 months ending with the chosen month, same scope. Each site's months in its own time zone."
       >
         {comparison.data ? (
-          <ComparisonTable rows={comparison.data.months} scope={scope} current={month} />
+          <>
+            <ComparisonChart rows={comparison.data.months} />
+            <ComparisonTable rows={comparison.data.months} scope={scope} current={month} />
+          </>
         ) : comparison.error ? (
           <p role="alert">{comparison.error.message}</p>
         ) : (
@@ -196,7 +199,10 @@ function ReportBody({ report, dim }: { report: MonthlyReport; dim: boolean }) {
               {s.siteName} — <span className="num">{s.figures.alarms}</span> alarms, {s.figures.positions} operator position
               {s.figures.positions === 1 ? "" : "s"}
             </h3>
-            <BenchmarkTable site={s} />
+            <div className="grid gap-3 xl:grid-cols-2">
+              <BenchmarkTable site={s} />
+              <PrioritySplitChart figures={s.figures} />
+            </div>
             <div className="grid gap-3 xl:grid-cols-2">
               <div className="space-y-1">
                 <div className="flex items-baseline gap-3">

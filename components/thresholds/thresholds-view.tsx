@@ -28,6 +28,9 @@ export function ThresholdsView({ scopeType, scopeId }: { scopeType: ScopeType; s
     <div className="mx-auto grid max-w-7xl gap-4 lg:grid-cols-[16rem_1fr]">
       <nav aria-label="Threshold sets" className="space-y-3 text-sm">
         <h1 className="text-2xl font-semibold">Thresholds</h1>
+        <p className="text-muted" data-testid="thresholds-scope-note">
+          These limits raise Airkeep&apos;s own alarms only. They never change the machine&apos;s own trips or settings.
+        </p>
         {models.map((m) => (
           <div key={m.id}>
             {link("model", m.id, `${m.name} template`, `${m.limits} limits`, "scope-model")}

@@ -442,10 +442,11 @@ async function main() {
   sqlite
     .prepare("INSERT INTO compressor_models (name, stages, rated_delivery_lpm, rated_pressure_bar, created_at) VALUES ('B', 4, 300, 420, ?)")
     .run(now);
-  // The live socket's token names user 1; the hub keeps it open only while that account exists and is enabled.
+  // The live socket's token names user 1 and a sign-in session; the hub checks both when the socket opens and at pings.
   sqlite
     .prepare("INSERT INTO users (id, email, name, password_hash, role, created_at, updated_at) VALUES (1, 'bench@airkeep.demo', 'Bench', '-', 'viewer', ?, ?)")
     .run(now, now);
+  sqlite.prepare("INSERT INTO user_sessions (id, user_id, created_at, last_seen_at) VALUES ('bench-session', 1, ?, ?)").run(now, now);
   const devices: Device[] = [];
   const ins = sqlite.prepare(
     `INSERT INTO compressors (site_id, model_id, name, serial, device_id, device_secret_hash, stop_pressure_bar, restart_pressure_bar, created_at, updated_at)
@@ -533,7 +534,7 @@ async function main() {
   // Phase 3: paced 2,000 readings/s (2,000 compressors at 1 Hz) with a live WebSocket client.
   pub = await publisher(env, devices);
   log(`paced: ${DEVICES} compressors connected; 2,000 readings/s for 15 s`);
-  const token = createLiveToken({ userId: 1, siteIds: null }, LIVE_SECRET);
+  const token = createLiveToken({ userId: 1, sessionId: "bench-session", siteIds: null }, LIVE_SECRET);
   const ws = new WebSocket(`ws://127.0.0.1:${livePort}/live?token=${token}`, { origin: ORIGIN });
   let wsLat: number[] = [];
   let measuring = false;

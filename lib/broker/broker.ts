@@ -6,11 +6,15 @@ import { writeServiceStatus } from "@/db/telemetry-state";
 import { channels, parseTopic, TOPIC_ROOT } from "@/shared/telemetry";
 import { createAuditLimiter } from "./audit-limiter";
 import { createCredentialChecker, type DeviceIdentity, type Identity } from "./credentials";
+import { type GuardLimits, guardSocket, type PacketGuard } from "./packet-guard";
 import { FastMemoryPersistence } from "./persistence";
+import { openQueueFile, queueFilePath } from "./queue-file";
 import { INGEST_CLIENT_ID, INGEST_TOPIC, ingestPassword as defaultIngestPassword, RESERVED_CLIENT_ID_PREFIX } from "./ingest-credential";
 
-/** The broker refuses anything larger outright; the ingester applies the tighter contract limit. */
+/** The broker refuses (acknowledges and drops) larger payloads; the ingester applies the tighter contract limit. */
 const BROKER_MAX_PAYLOAD = 64 * 1024;
+/** Refused publishes within a minute on one connection beyond which the connection is closed. */
+const REFUSALS_BEFORE_DISCONNECT = 30;
 const ALLOWED_CHANNELS = new Set<string>(channels);
 
 export type BrokerOptions = {
@@ -24,6 +28,12 @@ export type BrokerOptions = {
   ingestQueueMax?: number;
   /** Create the ingester's session at start-up so nothing is missed before it first connects. Default true. */
   reserveIngestSession?: boolean;
+  /** SQLite file that keeps queued messages across a restart; default `broker-queue.db` beside the database. */
+  queueFile?: string;
+  /** Socket limits checked before parsing; defaults from MQTT_MAX_PACKET_BYTES (256 KiB), 16 KiB and 64 KiB. */
+  limits?: Partial<GuardLimits>;
+  /** A client that has not sent CONNECT by then is dropped. Default 10 s. */
+  connectTimeoutMs?: number;
   statusIntervalMs?: number;
   revocationSweepMs?: number;
   log?: (msg: string) => void;
@@ -44,6 +54,9 @@ export type BrokerCounters = {
   credentialCacheHits: number;
   auditRows: number;
   auditSuppressed: number;
+  queueFileErrors: number;
+  /** Refused connections, publishes and subscriptions by reason, since the broker started. */
+  refused: Record<string, number>;
 };
 
 export type BrokerHandle = {
@@ -54,7 +67,7 @@ export type BrokerHandle = {
   stopListening(): Promise<void>;
   /** Listens again on the same port after stopListening. */
   listen(): Promise<void>;
-  stats(): BrokerCounters & { connectedClients: number; devicesConnected: number; ingesterConnected: boolean };
+  stats(): BrokerCounters & { connectedClients: number; devicesConnected: number; ingesterConnected: boolean; startedAt: number };
   aedes: Aedes;
 };
 
@@ -99,9 +112,26 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
     credentialCacheHits: 0,
     auditRows: 0,
     auditSuppressed: 0,
+    queueFileErrors: 0,
+    refused: {},
   };
+  const refuse = (reason: string) => {
+    c.refused[reason] = (c.refused[reason] ?? 0) + 1;
+  };
+  const limits: GuardLimits = {
+    maxPacketBytes: Number(process.env.MQTT_MAX_PACKET_BYTES ?? 256 * 1024),
+    maxConnectBytes: 16 * 1024,
+    maxPreAuthBytes: 64 * 1024,
+    ...opts.limits,
+  };
+  const guards = new WeakMap<net.Socket, PacketGuard>();
+  // Publishes refused but acknowledged: aedes sends the PUBACK, then asks publish() to route them, which skips them.
+  const dropped = new WeakSet<object>();
+  const strikes = new WeakMap<Client, { since: number; n: number }>();
+  const queueFile = openQueueFile(opts.queueFile ?? queueFilePath(db.$client.name), log);
 
   const persistence = new FastMemoryPersistence({
+    queueFile,
     shouldDrop(clientId, queued) {
       if (clientId !== INGEST_CLIENT_ID || queued < ingestQueueMax || ingesterClient) return false;
       // Bounded memory while the ingester is away: newest messages are dropped, and counted.
@@ -115,13 +145,14 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
     id: "airkeep-broker",
     persistence,
     maxClientsIdLength: 128,
-    connectTimeout: 10_000,
+    connectTimeout: opts.connectTimeoutMs ?? 10_000,
     authenticate(client, username, password, done) {
       const ip = remoteAddress(client);
       credentials.check(username, password).then(
         (res) => {
           if (!res.ok) {
             c.authFailed++;
+            refuse("auth_failed");
             audit.record({
               action: "mqtt.auth_failed",
               actor: actorFor(username),
@@ -140,6 +171,7 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
               : cid === id.deviceId || cid.startsWith(`${id.deviceId}:`);
           if (!clientIdOk) {
             c.clientIdDenied++;
+            refuse("client_id_not_allowed");
             audit.record({
               action: "mqtt.auth_failed",
               actor: actorFor(username),
@@ -152,6 +184,8 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
             return done(errorWithCode("client id not allowed for this credential", 2), false);
           }
           identities.set(client, id);
+          const guard = guards.get(client.conn as net.Socket);
+          if (guard) guard.authenticated = true;
           done(null, true);
         },
         (err: Error) => {
@@ -163,6 +197,7 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
     authorizePublish(client, packet, done) {
       const deny = (reason: string, id: Identity | undefined) => {
         c.publishDenied++;
+        refuse(reason);
         audit.record({
           action: "mqtt.publish_denied",
           actor: id?.kind === "device" ? `mqtt:${id.deviceId}` : id?.kind === "ingester" ? "mqtt:ingester" : "mqtt:-",
@@ -172,7 +207,18 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
           siteId: id?.kind === "device" ? id.siteId : null,
           details: { reason, topic: packet.topic.slice(0, 200), retain: !!packet.retain },
         });
-        done(new Error(`publish denied: ${reason}`));
+        if (!client) return done(new Error(`publish denied: ${reason}`));
+        // Acknowledged and dropped, so the client does not send it again after every reconnect; only a stream of
+        // refusals closes the connection.
+        const now = Date.now();
+        let s = strikes.get(client);
+        if (!s || now - s.since > 60_000) strikes.set(client, (s = { since: now, n: 0 }));
+        if (++s.n > REFUSALS_BEFORE_DISCONNECT) {
+          refuse("repeated_refusals");
+          return done(new Error(`publish denied: ${reason}, repeatedly`));
+        }
+        dropped.add(packet);
+        done(null);
       };
       if (!client) {
         // A will left behind by a broker instance that is gone: only a device's own status topic.
@@ -199,6 +245,7 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
       const ok = id?.kind === "ingester" && (sub.topic === INGEST_TOPIC || sub.topic.startsWith(`${TOPIC_ROOT}/`));
       if (ok) return done(null, sub);
       c.subscribeDenied++;
+      refuse("subscribe_denied");
       audit.record({
         action: "mqtt.subscribe_denied",
         actor: id?.kind === "device" ? `mqtt:${id.deviceId}` : "mqtt:-",
@@ -219,6 +266,15 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
     await persistence.addSubscriptions({ id: INGEST_CLIENT_ID }, [{ topic: INGEST_TOPIC, qos: 1 }]);
   }
 
+  type Done = (err?: Error) => void;
+  type Route = (packet: object, client: Client | Done | null, done?: Done) => void;
+  const route = (aedes.publish as unknown as Route).bind(aedes);
+  (aedes as unknown as { publish: Route }).publish = (packet, client, done) => {
+    if (!dropped.has(packet)) return route(packet, client, done);
+    dropped.delete(packet);
+    (typeof client === "function" ? client : done)?.();
+  };
+
   aedes.on("client", (client) => {
     const id = identities.get(client);
     if (id?.kind === "device") deviceClients.add(client);
@@ -232,8 +288,11 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
     c.clientErrors++;
     if (!/publish denied|ECONNRESET|EPIPE|keep alive/i.test(err.message)) log(`client ${client.id ?? "?"}: ${err.message}`);
   });
-  aedes.on("connectionError", () => {
+  aedes.on("connectionError", (_client, err) => {
     c.clientErrors++;
+    if (/connect did not arrive/.test(err.message)) refuse("connect_timeout");
+    else if (/unacceptable protocol version/.test(err.message)) refuse("protocol_version");
+    else if (!/ECONNRESET|EPIPE|connection closed/i.test(err.message)) refuse("malformed_packet");
   });
   (aedes as EventEmitter).on("error", (err: Error) => log(`error: ${err.message}`));
 
@@ -245,6 +304,15 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
         socket.setNoDelay(true);
         c.connectionsAccepted++;
         sockets.add(socket);
+        const ip = socket.remoteAddress ?? "";
+        guards.set(
+          socket,
+          guardSocket(socket, limits, (reason) => {
+            refuse(reason);
+            const client = socket.client;
+            audit.record({ action: "mqtt.connection_refused", actor: actorFor(undefined), ip, targetType: "mqtt_client", targetId: client?.id?.slice(0, 128) ?? null, details: { reason } });
+          }),
+        );
         socket.once("close", () => sockets.delete(socket));
         aedes.handle(socket);
       });
@@ -277,6 +345,7 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
       const row = credentials.lookup(id.deviceId);
       if (row && row.secretHash === id.secretHash && row.siteCode === id.siteCode) continue;
       c.credentialRevoked++;
+      refuse("credential_revoked");
       audit.record({
         action: "mqtt.credential_revoked",
         actor: `mqtt:${id.deviceId}`,
@@ -301,6 +370,9 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
     credentialCacheHits: credentials.cacheHits,
     auditRows: audit.rowsWritten,
     auditSuppressed: audit.suppressed,
+    queueFileErrors: queueFile.writeErrors,
+    refused: { ...c.refused },
+    startedAt,
     connectedClients: aedes.connectedClients,
     devicesConnected: deviceClients.size,
     ingesterConnected: ingesterClient !== null,
@@ -322,7 +394,9 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
         wsClients: 0,
         lastFlushAt: null,
         counters: {
-          ...c,
+          ...Object.fromEntries(Object.entries(c).filter(([, v]) => typeof v === "number")),
+          ...Object.fromEntries(Object.entries(s.refused).map(([k, v]) => [`refused.${k}`, v])),
+          queueFileErrors: s.queueFileErrors,
           ingestQueue: s.ingestQueue,
           bcryptChecks: s.bcryptChecks,
           credentialCacheHits: s.credentialCacheHits,
@@ -368,6 +442,7 @@ export async function startBroker(opts: BrokerOptions): Promise<BrokerHandle> {
       }
       await new Promise<void>((resolve) => aedes.close(() => resolve()));
       for (const sock of sockets) sock.destroy();
+      queueFile.close();
       await serverClosed;
       audit.close();
       writeStatus(false);

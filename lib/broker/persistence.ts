@@ -1,9 +1,11 @@
 import { Readable } from "node:stream";
+import type { QueueFile } from "./queue-file";
 
 // In-memory session store for aedes with constant-time queue operations. The stock memory store scans a
 // client's whole outgoing queue on every delivery and every PUBACK, so a subscriber that falls behind (or
 // holds acknowledgements until its commit) makes the broker slower the further behind it is.
 // Subscriptions are matched by a scan: in Airkeep only the ingester subscribes, so there are a handful.
+// With a queue file, outgoing queues are mirrored to disk and reloaded at start (see queue-file.ts).
 
 type Packet = {
   cmd?: string;
@@ -58,8 +60,10 @@ export function topicMatches(filter: string, topic: string): boolean {
   return f.length === t.length;
 }
 
+/** Messages reloaded from the queue file: the new broker instance numbers its own messages from 1 again. */
+const RESTORED_BROKER_ID = "restored";
+
 class OutgoingQueue {
-  private seq = 0;
   readonly items = new Map<number, Packet>();
   private byCounter = new Map<string, number>();
   private byMessageId = new Map<number, number>();
@@ -68,8 +72,7 @@ class OutgoingQueue {
     return `${p.brokerId}\u0000${p.brokerCounter}`;
   }
 
-  push(p: Packet): void {
-    const s = ++this.seq;
+  push(p: Packet, s: number): void {
     this.items.set(s, p);
     this.byCounter.set(OutgoingQueue.key(p), s);
   }
@@ -98,20 +101,22 @@ class OutgoingQueue {
     throw new Error("no such packet");
   }
 
-  clear(messageId: number | undefined): Packet | undefined {
+  clear(messageId: number | undefined): { p: Packet; s: number } | undefined {
     const s = messageId === undefined ? undefined : this.byMessageId.get(messageId);
     if (s === undefined) return undefined;
     const p = this.items.get(s)!;
     this.items.delete(s);
     this.byMessageId.delete(messageId!);
     this.byCounter.delete(OutgoingQueue.key(p));
-    return p;
+    return { p, s };
   }
 }
 
 export type PersistenceOptions = {
   /** Asked before a message is queued for a client; true drops it for that client. */
   shouldDrop?: (clientId: string, queued: number) => boolean;
+  /** Keeps outgoing queues across a restart: loaded now, then every change is mirrored to it. */
+  queueFile?: QueueFile;
 };
 
 export class FastMemoryPersistence {
@@ -124,8 +129,25 @@ export class FastMemoryPersistence {
   private wills = new Map<string, Packet>();
   private destroyed = false;
   private broker: { id: string } | null = null;
+  /** Numbers queued messages across all clients (the queue file's key). */
+  private seq = 0;
 
-  constructor(private readonly opts: PersistenceOptions = {}) {}
+  constructor(private readonly opts: PersistenceOptions = {}) {
+    for (const r of opts.queueFile?.load() ?? []) {
+      const p = copyPacket({ topic: r.topic, payload: r.payload, qos: r.qos, retain: r.retain, brokerId: RESTORED_BROKER_ID, brokerCounter: r.seq });
+      this.queue(r.clientId).push(p, r.seq);
+      this.seq = Math.max(this.seq, r.seq);
+    }
+  }
+
+  private queue(clientId: string): OutgoingQueue {
+    let q = this.outgoing.get(clientId);
+    if (!q) {
+      q = new OutgoingQueue();
+      this.outgoing.set(clientId, q);
+    }
+    return q;
+  }
 
   async setup(broker: { id: string }): Promise<void> {
     this.broker = broker;
@@ -214,13 +236,12 @@ export class FastMemoryPersistence {
   }
 
   private enqueue(clientId: string, packet: Packet): void {
-    let q = this.outgoing.get(clientId);
-    if (!q) {
-      q = new OutgoingQueue();
-      this.outgoing.set(clientId, q);
-    }
+    const q = this.queue(clientId);
     if (this.opts.shouldDrop?.(clientId, q.items.size)) return;
-    q.push(copyPacket(packet));
+    const p = copyPacket(packet);
+    const s = ++this.seq;
+    q.push(p, s);
+    this.opts.queueFile?.added(clientId, s, p);
   }
 
   async outgoingEnqueue(sub: { clientId: string }, packet: Packet): Promise<void> {
@@ -238,7 +259,9 @@ export class FastMemoryPersistence {
   }
 
   async outgoingClearMessageId(client: ClientRef, packet: { messageId?: number }): Promise<Packet | undefined> {
-    return this.outgoing.get(client.id)?.clear(packet.messageId);
+    const hit = this.outgoing.get(client.id)?.clear(packet.messageId);
+    if (hit) this.opts.queueFile?.removed(hit.s);
+    return hit?.p;
   }
 
   outgoingStream(client: ClientRef): Readable {
@@ -299,5 +322,6 @@ export class FastMemoryPersistence {
     if (this.destroyed) throw new Error("destroyed called twice!");
     this.destroyed = true;
     this.retained.clear();
+    this.opts.queueFile?.close();
   }
 }

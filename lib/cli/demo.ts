@@ -6,6 +6,7 @@ import { DEMO_PASSWORD, demoEmail, demoUsers } from "@/db/demo-scenario";
 import { runMigrations } from "@/db/migrate";
 import { seedDemo } from "@/db/seed";
 import { buildIfNeeded } from "./build-if-needed";
+import { queueFilePath } from "@/lib/broker/queue-file";
 import { keptSecret } from "@/lib/kept-secret";
 import { dataDir } from "./data-dir";
 import { readDeviceSecrets, writeDemoDevices } from "./demo-devices";
@@ -23,7 +24,7 @@ const { values: flags } = parseArgs({
 
 if (flags.reset) {
   const file = databasePath();
-  for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(file + suffix, { force: true });
+  for (const f of [file, queueFilePath(file)]) for (const suffix of ["", "-wal", "-shm"]) fs.rmSync(f + suffix, { force: true });
 }
 
 const env: NodeJS.ProcessEnv = { ...process.env, NEXT_TELEMETRY_DISABLED: "1" };

@@ -43,7 +43,7 @@ export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions
         const code = await runJob("backfill", tsx, ["simulator/main.ts", "--backfill", `${days}d`], env);
         if (code !== 0) console.error(`[airkeep] backfill ended with ${code}; the live simulator starts anyway.`);
       }
-      startProcess("simulator", tsx, ["simulator/main.ts"], env);
+      startProcess("simulator", tsx, ["simulator/main.ts", "--opening"], env);
     })();
   }
   return where;

@@ -11,6 +11,7 @@ import {
 } from "@/shared/telemetry";
 import type { DirectoryEntry } from "./device-directory";
 import { isTelemetryFast } from "./fast-telemetry";
+import { type SequenceRejectReason, sequenceRejectReasons } from "./sequence";
 
 export const rejectReasons = [
   "oversized",
@@ -21,6 +22,7 @@ export const rejectReasons = [
   "future",
   "tooOld",
   "duplicate",
+  ...sequenceRejectReasons,
 ] as const;
 export type RejectReason = (typeof rejectReasons)[number];
 
@@ -37,7 +39,7 @@ export type Classified =
   | { ok: true; channel: "telemetry"; device: DirectoryEntry; msg: Telemetry }
   | { ok: true; channel: "status"; device: DirectoryEntry; msg: DeviceStatus }
   | { ok: true; channel: "event"; device: DirectoryEntry; msg: DeviceEvent }
-  | { ok: false; reason: Exclude<RejectReason, "duplicate">; detail: string; deviceId?: string };
+  | { ok: false; reason: Exclude<RejectReason, "duplicate" | SequenceRejectReason>; detail: string; deviceId?: string };
 
 function firstIssue(error: { issues: { path: PropertyKey[]; message: string }[] }): string {
   const i = error.issues[0];

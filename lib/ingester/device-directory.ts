@@ -1,7 +1,14 @@
 import type { Statement } from "better-sqlite3";
 import type { Db } from "@/db/client";
 
-export type DirectoryEntry = { compressorId: number; deviceId: string; siteId: number; siteCode: string };
+export type DirectoryEntry = {
+  compressorId: number;
+  deviceId: string;
+  siteId: number;
+  siteCode: string;
+  /** The model's rated pressure, bar: what its pressures are judged against. */
+  ratedPressureBar: number;
+};
 
 export type DeviceDirectory = {
   byDeviceId(deviceId: string): DirectoryEntry | undefined;
@@ -15,8 +22,9 @@ export function createDeviceDirectory(db: Db, opts: { refreshMs?: number; missRe
   close(): void;
 } {
   const select = db.$client.prepare(
-    `SELECT c.id AS compressorId, c.device_id AS deviceId, c.site_id AS siteId, s.code AS siteCode
-     FROM compressors c JOIN sites s ON s.id = c.site_id ORDER BY c.id`,
+    `SELECT c.id AS compressorId, c.device_id AS deviceId, c.site_id AS siteId, s.code AS siteCode,
+       m.rated_pressure_bar AS ratedPressureBar
+     FROM compressors c JOIN sites s ON s.id = c.site_id JOIN compressor_models m ON m.id = c.model_id ORDER BY c.id`,
   ) as Statement<[], DirectoryEntry>;
   const missReloadMs = opts.missReloadMs ?? 5_000;
   let byDevice = new Map<string, DirectoryEntry>();

@@ -49,8 +49,8 @@ export function isTelemetryFast(o: unknown): o is Telemetry {
     intInRange(r.ts, 1, Number.MAX_SAFE_INTEGER) &&
     RUN_STATES.has(r.runState) &&
     typeof r.motorOn === "boolean" &&
-    inRange(r.deliveryBar, -1, 700) &&
-    stages(r.stageBar, -1, 700) &&
+    inRange(r.deliveryBar, -1, Number.MAX_VALUE) &&
+    stages(r.stageBar, -1, Number.MAX_VALUE) &&
     stages(r.stageC, -50, 350) &&
     optionalInRange(r.oilBar, -1, 30) &&
     optionalInRange(r.purifierC, -50, 150) &&

@@ -18,6 +18,8 @@ import { liveAccessCheck } from "./live-access";
 import { LiveBoard } from "./live-board";
 import { type LiveHub, startLiveHub } from "./live-hub";
 import { createRateLimitedLog } from "./reject-log";
+import { type PressureField, pressureFields, withholdImplausible } from "./plausibility";
+import { createSequenceGuard, type Neighbours } from "./sequence";
 
 export type IngesterOptions = {
   db: Db;
@@ -87,6 +89,12 @@ export type IngesterStats = {
   slowestFlushMs: number;
   pendingRows: number;
   pruned: number;
+  /** Readings accepted as the first of a new run after a gateway restart (seq started over). */
+  seqRestarts: number;
+  /** Readings that arrived after a later one and were stored in their place (a reconnecting client may reorder). */
+  lateReadings: number;
+  /** Pressures withheld from stored readings as beyond the model's reach (sensor faults), by field. */
+  sensorFaults: Record<PressureField, number>;
   commsLost: number;
   commsRestored: number;
   reconnects: number;
@@ -138,6 +146,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   const directory = createDeviceDirectory(db);
   const board = new LiveBoard(listCompressorStates(db));
   const rejectLog = createRateLimitedLog((line) => log(`reject ${line}`));
+  const noticeLog = createRateLimitedLog(log);
   const alarmEngine = opts.alarms === false ? null : createAlarmEngine(db, { log: (m) => log(`alarms: ${m}`) });
   // Readings and the alarm changes they cause commit together, so a restart neither loses nor repeats an alarm.
   const commit = db.$client.transaction(
@@ -151,6 +160,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
   );
 
   const rejects = Object.fromEntries(rejectReasons.map((r) => [r, 0])) as Record<RejectReason, number>;
+  const sensorFaults = Object.fromEntries(pressureFields.map((f) => [f, 0])) as Record<PressureField, number>;
   const st = {
     received: 0,
     telemetry: 0,
@@ -163,6 +173,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     lastFlushMs: 0,
     slowestFlushMs: 0,
     pruned: 0,
+    seqRestarts: 0,
+    lateReadings: 0,
     commsLost: 0,
     commsRestored: 0,
     reconnects: 0,
@@ -171,12 +183,33 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
 
   let hub: LiveHub | null = null;
   if (opts.live) {
-    // Revoked access stops live values at the next ping, not at token expiry.
-    hub = await startLiveHub({ board, directory, stillAllowed: liveAccessCheck(db), ...opts.live, log: (m) => log(m) });
+    // Access is checked when a socket opens and again at every ping (revocation, session limits, site scope).
+    hub = await startLiveHub({ board, directory, access: liveAccessCheck(db), ...opts.live, log: (m) => log(m) });
   }
   const notify = (compressorId: number) => hub?.notify(compressorId);
 
   let pendingRows: ReadingInput[] = [];
+  // Pending rows by compressor: not in the table yet, so the sequence rule looks at them too (off the common path).
+  let pendingBy = new Map<number, ReadingInput[]>();
+  const hold = (r: ReadingInput): void => {
+    pendingRows.push(r);
+    const list = pendingBy.get(r.compressorId);
+    if (list) list.push(r);
+    else pendingBy.set(r.compressorId, [r]);
+  };
+  const heldAround = (compressorId: number, ts: number): Neighbours => {
+    const n: Neighbours = store.around(compressorId, ts);
+    for (const r of pendingBy.get(compressorId) ?? []) {
+      if (r.ts === ts) n.at = r.seq;
+      else if (r.ts < ts && (!n.before || r.ts > n.before.ts)) n.before = { seq: r.seq, ts: r.ts };
+      else if (r.ts > ts && (!n.after || r.ts < n.after.ts)) n.after = { seq: r.seq, ts: r.ts };
+    }
+    return n;
+  };
+  const sequence = createSequenceGuard(
+    board.rows().flatMap((r) => (r.ts !== null && r.seq !== null ? [[r.compressorId, { seq: r.seq, ts: r.ts }] as const] : [])),
+    heldAround,
+  );
   let pendingEvents: DeviceEventInput[] = [];
   let pendingAcks: PendingAck[] = [];
   let flushTimer: NodeJS.Timeout | null = null;
@@ -249,6 +282,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     const events = pendingEvents;
     const acks = pendingAcks;
     pendingRows = [];
+    pendingBy = new Map();
     pendingEvents = [];
     pendingAcks = [];
     const states = board.takeDirty();
@@ -265,12 +299,19 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
         rejects.duplicate += res.duplicates;
         rejectLog.note("duplicate", `${res.duplicates} reading(s) already stored`);
       }
+      if (res.conflicts > 0) {
+        rejects.sameTimestamp += res.conflicts;
+        rejectLog.note("sameTimestamp", `${res.conflicts} reading(s) in a millisecond another reading already holds`);
+      }
     } catch (e) {
       st.flushErrors++;
       alarmEngine?.resync();
       log(`commit failed, will retry: ${(e as Error).message}`);
       // Not acknowledged, so the broker still holds them; keep a bounded copy to retry.
-      pendingRows = rows.concat(pendingRows).slice(-MAX_PENDING_ROWS);
+      const held = rows.concat(pendingRows).slice(-MAX_PENDING_ROWS);
+      pendingRows = [];
+      pendingBy = new Map();
+      for (const r of held) hold(r);
       pendingEvents = events.concat(pendingEvents).slice(-10_000);
       pendingAcks = acks.concat(pendingAcks);
       board.markDirty(states.map((x) => x.compressorId));
@@ -320,10 +361,25 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     switch (c.channel) {
       case "telemetry": {
         st.telemetry++;
-        const reading = telemetryToReading(id, c.msg);
-        pendingRows.push(reading);
+        // The device is talking even when the reading breaks the sequence rule.
         commsUp(id, now, "Telemetry resumed");
         board.seen(id, now);
+        const verdict = sequence.check(id, c.msg.seq, c.msg.ts);
+        if (verdict === "restart") {
+          st.seqRestarts++;
+          noticeLog.note("sequence restart", `${c.device.deviceId} started a new run at seq ${c.msg.seq}`);
+        } else if (verdict === "late") {
+          st.lateReadings++;
+        } else if (verdict !== "next") {
+          reject(verdict, `${c.device.deviceId} seq ${c.msg.seq} ts ${c.msg.ts}`, topic);
+          break;
+        }
+        const reading = telemetryToReading(id, c.msg);
+        for (const f of withholdImplausible(reading, c.device.ratedPressureBar)) {
+          sensorFaults[f]++;
+          noticeLog.note(`sensor fault ${c.device.deviceId}`, `${f} ${reading.implausible?.[f]} bar is beyond a ${c.device.ratedPressureBar}-bar model: withheld`);
+        }
+        hold(reading);
         if (board.applyReading(reading, now)) notify(id);
         break;
       }
@@ -350,6 +406,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
           commsDown(id, now, c.msg.ts ?? now, packet.retain ? "Device offline (retained status)" : "Device went offline (last will or disconnect)");
         } else if (!packet.retain) {
           // A retained "online" only says the device connected at some point, not that it is reporting now.
+          sequence.reconnected(id);
           commsUp(id, now, "Device connected");
           board.seen(id, now);
           notify(id);
@@ -439,6 +496,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
     connected,
     ...st,
     rejects: { ...rejects },
+    sensorFaults: { ...sensorFaults },
     pendingRows: pendingRows.length,
     live: hub?.stats() ?? null,
   });
@@ -460,6 +518,8 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       slowestFlushMs: Math.round(s.slowestFlushMs),
       pendingRows: s.pendingRows,
       pruned: s.pruned,
+      seqRestarts: s.seqRestarts,
+      lateReadings: s.lateReadings,
       commsLost: s.commsLost,
       commsRestored: s.commsRestored,
       reconnects: s.reconnects,
@@ -467,10 +527,14 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       rssMb: Math.round(process.memoryUsage.rss() / 1048576),
     };
     for (const r of rejectReasons) counters[`reject.${r}`] = s.rejects[r];
+    for (const f of pressureFields) counters[`sensorFault.${f}`] = s.sensorFaults[f];
     if (s.live) {
       counters["ws.accepted"] = s.live.accepted;
       counters["ws.refusedToken"] = s.live.refusedToken;
       counters["ws.refusedOrigin"] = s.live.refusedOrigin;
+      counters["ws.refusedAccess"] = s.live.refusedAccess;
+      counters["ws.closedRevoked"] = s.live.closedRevoked;
+      counters["ws.rescoped"] = s.live.rescoped;
       counters["ws.droppedSlow"] = s.live.droppedSlow;
       counters["ws.updatesSent"] = s.live.updatesSent;
     }
@@ -516,6 +580,7 @@ export async function startIngester(opts: IngesterOptions): Promise<Ingester> {
       await checkpointer?.close();
       db.$client.pragma("wal_autocheckpoint = 1000");
       rejectLog.flush();
+      noticeLog.flush();
       writeStatus();
     },
   };

@@ -4,6 +4,7 @@ import { WebSocket, WebSocketServer } from "ws";
 import { type LiveTokenClaims, verifyLiveToken } from "@/lib/live-token";
 import type { LiveMessage } from "@/shared/live";
 import type { DeviceDirectory } from "./device-directory";
+import type { LiveAccessCheck } from "./live-access";
 import type { LiveBoard } from "./live-board";
 
 export type LiveHubOptions = {
@@ -22,8 +23,12 @@ export type LiveHubOptions = {
   pingMs?: number;
   /** The connection is closed (code 4001) after this long, so a revoked user or display link drops off. */
   maxConnectionMs?: number;
-  /** Checked for every open connection at each ping: false closes it (code 4003), e.g. a revoked display link. */
-  stillAllowed?: (claims: LiveTokenClaims) => boolean;
+  /**
+   * Asked before a socket opens (a refusal answers 401) and for every open socket at each ping (a refusal closes it
+   * with code 4003); the sites it returns replace the token's, so a narrowed scope applies from the next ping.
+   * Without it the token alone decides, for its lifetime.
+   */
+  access?: LiveAccessCheck;
   maxClients?: number;
   /** A client this far behind is dropped; it reconnects and gets a fresh snapshot. */
   maxBufferedBytes?: number;
@@ -36,8 +41,12 @@ export type LiveHubStats = {
   refusedToken: number;
   refusedOrigin: number;
   refusedFull: number;
+  /** Upgrades refused although the token was good: its session, account or display link no longer gives access. */
+  refusedAccess: number;
   /** Open connections closed because their user or display link lost access. */
   closedRevoked: number;
+  /** Open connections whose sites changed at a ping (they got a fresh snapshot in the new scope). */
+  rescoped: number;
   droppedSlow: number;
   updatesSent: number;
 };
@@ -52,17 +61,34 @@ export type LiveHub = {
 
 type Conn = { ws: WebSocket; claims: LiveTokenClaims; sites: Set<number> | null; alive: boolean; lifetime: NodeJS.Timeout };
 
+const toScope = (siteIds: readonly number[] | null): Set<number> | null => (siteIds ? new Set(siteIds) : null);
+
+function sameScope(a: Set<number> | null, b: Set<number> | null): boolean {
+  if (a === null || b === null) return a === b;
+  return a.size === b.size && [...a].every((x) => b.has(x));
+}
+
 export function defaultAllowedOrigins(env: Record<string, string | undefined> = process.env): string[] {
   const explicit = env.LIVE_ALLOWED_ORIGINS?.split(",")
     .map((s) => s.trim())
     .filter(Boolean);
   if (explicit?.length) return explicit;
+  let url: URL;
   try {
-    return [new URL(env.NEXTAUTH_URL ?? "http://localhost:3000").origin];
+    url = new URL(env.NEXTAUTH_URL ?? "http://localhost:3000");
   } catch {
-    return ["http://localhost:3000"];
+    url = new URL("http://localhost:3000");
   }
+  // A page opened at 127.0.0.1 or [::1] is the same loopback server as one opened at localhost.
+  if (!LOOPBACK_HOSTS.includes(url.hostname)) return [url.origin];
+  return LOOPBACK_HOSTS.map((host) => {
+    const u = new URL(url.origin);
+    u.hostname = host;
+    return u.origin;
+  });
 }
+
+const LOOPBACK_HOSTS = ["localhost", "127.0.0.1", "[::1]"];
 
 function refuse(socket: net.Socket, status: number, text: string): void {
   socket.end(`HTTP/1.1 ${status} ${text}\r\nConnection: close\r\nContent-Type: text/plain\r\nContent-Length: ${text.length}\r\n\r\n${text}`);
@@ -83,7 +109,9 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
     refusedToken: 0,
     refusedOrigin: 0,
     refusedFull: 0,
+    refusedAccess: 0,
     closedRevoked: 0,
+    rescoped: 0,
     droppedSlow: 0,
     updatesSent: 0,
   };
@@ -97,6 +125,15 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
     if (!c.sites) return true;
     const siteId = directory.byCompressorId(compressorId)?.siteId;
     return siteId !== undefined && c.sites.has(siteId);
+  };
+
+  const sendSnapshot = (c: Conn): void => {
+    const now = Date.now();
+    const compressors = directory
+      .all()
+      .filter((d) => inScope(c, d.compressorId))
+      .map((d) => board.live(d.compressorId, now));
+    send(c, JSON.stringify({ type: "snapshot", at: now, compressors } satisfies LiveMessage));
   };
 
   const send = (c: Conn, data: string): void => {
@@ -127,6 +164,12 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
       s.refusedToken++;
       return refuse(socket, 401, "Unauthorized");
     }
+    // A good signature only says the token was issued; whether its session, account or link still counts is asked now.
+    const access = opts.access?.(claims) ?? { ok: true as const, siteIds: claims.siteIds };
+    if (!access.ok) {
+      s.refusedAccess++;
+      return refuse(socket, 401, "Unauthorized");
+    }
     if (conns.size >= maxClients) {
       s.refusedFull++;
       return refuse(socket, 503, "Service Unavailable");
@@ -136,7 +179,7 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
       const c: Conn = {
         ws,
         claims,
-        sites: claims.siteIds ? new Set(claims.siteIds) : null,
+        sites: toScope(access.siteIds),
         alive: true,
         lifetime: setTimeout(() => ws.close(4001, "token lifetime over: reconnect"), maxConnectionMs),
       };
@@ -149,27 +192,30 @@ export async function startLiveHub(opts: LiveHubOptions): Promise<LiveHub> {
         clearTimeout(c.lifetime);
         conns.delete(c);
       });
-      const now = Date.now();
-      const compressors = directory
-        .all()
-        .filter((d) => inScope(c, d.compressorId))
-        .map((d) => board.live(d.compressorId, now));
-      const snapshot: LiveMessage = { type: "snapshot", at: now, compressors };
-      send(c, JSON.stringify(snapshot));
+      sendSnapshot(c);
     });
   });
 
   const pingTimer = setInterval(() => {
     const data = JSON.stringify({ type: "ping", at: Date.now() } satisfies LiveMessage);
     for (const c of conns) {
+      // Closing already (its close handshake still under way): judged and counted once.
+      if (c.ws.readyState !== WebSocket.OPEN) continue;
       if (!c.alive) {
         c.ws.terminate();
         continue;
       }
-      if (opts.stillAllowed && !opts.stillAllowed(c.claims)) {
+      const access = opts.access?.(c.claims);
+      if (access && !access.ok) {
         s.closedRevoked++;
-        c.ws.close(4003, "access revoked");
+        c.ws.close(4003, `access ended: ${access.reason}`);
         continue;
+      }
+      if (access && !sameScope(c.sites, toScope(access.siteIds))) {
+        // Sites narrowed or widened since the token: from now on only the new scope, starting with its snapshot.
+        s.rescoped++;
+        c.sites = toScope(access.siteIds);
+        sendSnapshot(c);
       }
       c.alive = false;
       c.ws.ping();

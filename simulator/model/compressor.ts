@@ -415,11 +415,14 @@ export class CompressorModel {
     const r = new Random(`${this.seed}:${spec.deviceId}:fault:${spec.kind}:${spec.atMs}`);
     let rampMs = 0;
     let fanTripAfterS: number | null = null;
+    // The draws happen whether or not the spec fixes the outcome, so the seed's later draws stay the same.
     if (spec.kind === "cooling") {
-      rampMs = r.uniform(6, 14) * 60_000;
-      if (r.chance(0.25)) fanTripAfterS = r.uniform(60, 240);
+      rampMs = spec.rampMs ?? r.uniform(6, 14) * 60_000;
+      const fanTrip = r.chance(0.25);
+      const fanTripS = fanTrip ? r.uniform(60, 240) : null;
+      if (spec.fanTrip ?? fanTrip) fanTripAfterS = fanTripS ?? 120;
     } else if (spec.kind === "oil") {
-      rampMs = r.uniform(5, 10) * 60_000;
+      rampMs = spec.rampMs ?? r.uniform(5, 10) * 60_000;
     } else if (spec.kind === "worn-valves") {
       rampMs = Math.min(2 * DAY_MS, (spec.durationMs ?? 6 * DAY_MS) / 3);
     }

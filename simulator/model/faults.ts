@@ -26,6 +26,10 @@ export type FaultSpec = {
   durationMs: number | null;
   /** Stage index (0-based) a sensor or valve fault affects; default the final stage (sensors) or stage 2 (valves). */
   stage?: number;
+  /** How long a heat or oil fault takes to develop fully, ms; drawn from the seed when absent. */
+  rampMs?: number;
+  /** Whether a cooling fault trips the fan's own motor protection before the stage overheats; drawn when absent. */
+  fanTrip?: boolean;
 };
 
 const MIN = 60_000;

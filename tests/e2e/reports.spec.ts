@@ -75,6 +75,7 @@ test("a manager opens last month's report, drills into the outage and downloads 
   await page.goto(`/reports?month=${month}&scope=site-${siteId}`);
   await expect(page.getByRole("heading", { name: "Monthly report" })).toBeVisible();
   await expect(page.getByTestId("report-title")).toContainText(monthLabel(month));
+  await expect(page).toHaveTitle(`Report · ${monthLabel(month)} · Airkeep`);
   await expect(page.getByTestId("report-title")).toContainText("Marrow Bay Fire Station");
   await expect(page.getByTestId("report-period").first()).toContainText("Europe/London");
   await expect(page.getByTestId("headline-failures").locator(".num")).toHaveText("1");
@@ -89,9 +90,11 @@ test("a manager opens last month's report, drills into the outage and downloads 
   await outage.getByTestId("outage-events-link").click();
   await expect(page).toHaveURL(new RegExp(`/events\\?compressor=${compressorId}&from=${tripStart - 600_000}&to=${tripEnd + 600_000}$`));
 
-  // Back to the report, and the outage table as CSV.
+  // Back to the report: the month-to-month and alarm-load charts, and the outage table as CSV.
   await page.goBack();
   await expect(page.getByTestId("outages-table")).toBeVisible();
+  await expect(page.getByTestId("comparison-chart").locator(".recharts-line")).toHaveCount(1);
+  await expect(page.getByTestId(`alarm-load-${siteId}`).getByText(/No alarms in this period|Critical/).first()).toBeVisible();
   const [download] = await Promise.all([page.waitForEvent("download"), page.getByTestId("csv-outages").click()]);
   expect(download.suggestedFilename()).toBe(`airkeep-outages-site-${siteId}-${month}.csv`);
   const csv = fs.readFileSync((await download.path())!, "utf8");

@@ -43,12 +43,14 @@ afterAll(async () => {
 
 const auditCount = (action: string) => count(t.db, "SELECT count(*) AS n FROM audit_log WHERE action = ?", action);
 
-/** Publishes at QoS 1 and reports whether the broker kept the connection (a refused publish closes it). */
+/** Publishes at QoS 1 and reports whether it was acknowledged and the broker kept the connection. */
 async function publishOutcome(client: mqtt.MqttClient, topic: string, payload: string, retain = false) {
   const closed = new Promise<"closed">((r) => client.once("close", () => r("closed")));
-  client.publish(topic, payload, { qos: 1, retain });
-  const outcome = await Promise.race([closed, new Promise<"open">((r) => setTimeout(() => r("open"), 300))]);
-  return outcome;
+  const acked = client.publishAsync(topic, payload, { qos: 1, retain }).then(() => "acked" as const);
+  const first = await Promise.race([closed, acked, new Promise<"timeout">((r) => setTimeout(() => r("timeout"), 2_000))]);
+  if (first !== "acked") return first;
+  // Still open a moment later.
+  return Promise.race([closed, new Promise<"acked, open">((r) => setTimeout(() => r("acked, open"), 200))]);
 }
 
 describe("embedded broker: credentials", () => {
@@ -113,9 +115,9 @@ describe("embedded broker: topic rules", () => {
   it("lets a device publish only under its own site and id, on the three channels", async () => {
     const d = dev.get("hp-1")!;
     const c = await connectDevice(url, d);
-    expect(await publishOutcome(c, topicOf(d), JSON.stringify(telemetry()))).toBe("open");
-    expect(await publishOutcome(c, topicOf(d, "event"), "{}")).toBe("open");
-    expect(await publishOutcome(c, topicOf(d, "status"), '{"v":1,"status":"online"}', true)).toBe("open");
+    expect(await publishOutcome(c, topicOf(d), JSON.stringify(telemetry()))).toBe("acked, open");
+    expect(await publishOutcome(c, topicOf(d, "event"), "{}")).toBe("acked, open");
+    expect(await publishOutcome(c, topicOf(d, "status"), '{"v":1,"status":"online"}', true)).toBe("acked, open");
     await c.endAsync();
   });
 
@@ -126,10 +128,10 @@ describe("embedded broker: topic rules", () => {
     ["a topic outside the tree", "other/thing", false],
     ["a deeper topic", "airkeep/v1/north/hp-1/telemetry/x", false],
     ["retained telemetry", "airkeep/v1/north/hp-1/telemetry", true],
-  ])("refuses a device publishing to %s (connection closed, counted, audited)", async (_l, topic, retain) => {
+  ])("refuses a device publishing to %s (acknowledged and dropped, counted, connection kept)", async (_l, topic, retain) => {
     const c = await connectDevice(url, dev.get("hp-1")!);
     const before = broker.stats().publishDenied;
-    expect(await publishOutcome(c, topic, "{}", retain)).toBe("closed");
+    expect(await publishOutcome(c, topic, "{}", retain)).toBe("acked, open");
     expect(broker.stats().publishDenied).toBe(before + 1);
     c.end(true);
   });
@@ -165,8 +167,13 @@ describe("embedded broker: topic rules", () => {
     await waitFor(() => got.includes(topicOf(d)), 3_000, "delivery to the ingester");
 
     const before = broker.stats().publishDenied;
-    expect(await publishOutcome(ing, topicOf(d), JSON.stringify(telemetry()))).toBe("closed");
+    const n = got.length;
+    expect(await publishOutcome(ing, topicOf(d), JSON.stringify(telemetry()))).toBe("acked, open");
     expect(broker.stats().publishDenied).toBe(before + 1);
+    expect(broker.stats().refused.ingester_is_subscribe_only).toBe(1);
+    // Dropped: not delivered to the subscriber.
+    await new Promise((r) => setTimeout(r, 100));
+    expect(got.length).toBe(n);
     await waitFor(() => auditCount("mqtt.publish_denied") >= 1, 2_000, "audit row");
     ing.end(true);
     await c.endAsync();

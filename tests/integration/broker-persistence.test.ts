@@ -1,6 +1,10 @@
 import { spawnSync } from "node:child_process";
+import fs from "node:fs";
+import os from "node:os";
+import path from "node:path";
 import { describe, expect, it } from "vitest";
 import { FastMemoryPersistence, topicMatches } from "@/lib/broker/persistence";
+import { openQueueFile } from "@/lib/broker/queue-file";
 
 describe("broker session store", () => {
   it("passes the aedes persistence conformance suite", () => {
@@ -51,5 +55,41 @@ describe("broker session store", () => {
       await p.outgoingEnqueueCombi([{ clientId: "c" }], { topic: "t", payload: Buffer.from("x"), qos: 1, brokerId: "b", brokerCounter: i });
     }
     expect(p.queued("c")).toBe(3);
+  });
+});
+
+describe("broker queue file", () => {
+  it("reloads what was queued and not acknowledged, in order, and numbers new messages after it", async () => {
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), "airkeep-queue-"));
+    const file = path.join(dir, "broker-queue.db");
+    try {
+      const first = new FastMemoryPersistence({ queueFile: openQueueFile(file) });
+      await first.setup({ id: "b" });
+      const client = { id: "airkeep-ingester" };
+      for (let i = 1; i <= 5; i++) {
+        await first.outgoingEnqueue({ clientId: client.id }, { topic: `t/${i}`, payload: Buffer.from([i]), qos: 1, brokerId: "b", brokerCounter: i });
+      }
+      // Two delivered and acknowledged, one delivered and not.
+      for (const [counter, messageId] of [[1, 101], [2, 102], [3, 103]] as const) {
+        await first.outgoingUpdate(client, { topic: `t/${counter}`, payload: Buffer.alloc(0), qos: 1, brokerId: "b", brokerCounter: counter, messageId });
+      }
+      await first.outgoingClearMessageId(client, { messageId: 101 });
+      await first.outgoingClearMessageId(client, { messageId: 102 });
+      await first.destroy();
+
+      const second = new FastMemoryPersistence({ queueFile: openQueueFile(file) });
+      await second.setup({ id: "b" });
+      expect(second.queued(client.id)).toBe(3);
+      await second.outgoingEnqueue({ clientId: client.id }, { topic: "t/6", payload: Buffer.from([6]), qos: 1, brokerId: "b", brokerCounter: 1 });
+      const packets = await second.outgoingStream(client).toArray();
+      expect(packets.map((p: { topic: string }) => p.topic)).toEqual(["t/3", "t/4", "t/5", "t/6"]);
+      expect(packets.map((p: { payload: Buffer }) => p.payload[0])).toEqual([3, 4, 5, 6]);
+      await second.destroy();
+      const third = new FastMemoryPersistence({ queueFile: openQueueFile(file) });
+      expect(third.queued(client.id)).toBe(4);
+      await third.destroy();
+    } finally {
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 });

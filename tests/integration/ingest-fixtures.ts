@@ -141,6 +141,19 @@ export function topicOf(d: { siteCode: string; deviceId: string }, channel: "tel
   return topicFor(d.siteCode, d.deviceId, channel);
 }
 
+/** Publishes readings in order at QoS 1, waits until the ingester has handled each, and commits what it kept. */
+export async function sendReadings(
+  ingester: { stats(): { telemetry: number }; flush(): void },
+  client: MqttClient,
+  d: { siteCode: string; deviceId: string },
+  readings: Partial<Telemetry>[],
+): Promise<void> {
+  const target = ingester.stats().telemetry + readings.length;
+  for (const r of readings) await client.publishAsync(topicOf(d), JSON.stringify(telemetry(r)), { qos: 1 });
+  await waitFor(() => ingester.stats().telemetry >= target, 3_000, "readings handled");
+  ingester.flush();
+}
+
 export function count(db: Db, sql: string, ...params: unknown[]): number {
   return (db.$client.prepare(sql).get(...params) as { n: number }).n;
 }

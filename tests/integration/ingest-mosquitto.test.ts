@@ -127,7 +127,8 @@ describe.skipIf(!available)("ingesting through Mosquitto (MQTT_URL)", () => {
   it("stores readings and refuses a device Mosquitto knows but Airkeep does not", async () => {
     const d = dev.get("hp-1")!;
     const c = await connectDevice(`mqtt://127.0.0.1:${port}`, d);
-    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: Date.now() - 100 })), { qos: 1 });
+    // Well before the readings of the last test, which must come later by both seq and time (the sequence rule).
+    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: Date.now() - 600_000 })), { qos: 1 });
     await waitFor(() => stored(d) === 1, 5_000, "row");
     const ghost = await connectDevice(`mqtt://127.0.0.1:${port}`, { deviceId: "ghost-1", secret: "ghost-secret" });
     const before = ingester!.stats().rejects.unknownDevice;
@@ -146,11 +147,12 @@ describe.skipIf(!available)("ingesting through Mosquitto (MQTT_URL)", () => {
     const d = dev.get("hp-2")!;
     const c = await connectDevice(`mqtt://127.0.0.1:${port}`, d);
     const before = stored(d);
-    const base = Date.now() - 3_600_000 * version;
+    // Each run later than the one before, by time and by seq (the sequence rule).
+    const base = Date.now() - 3_600_000 * (6 - version);
     const t0 = Date.now();
     await Promise.all(
       Array.from({ length: n }, (_, i) =>
-        c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: base + i * 100, seq: i })), { qos: 1 }),
+        c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: base + i * 100, seq: version * 100_000 + i })), { qos: 1 }),
       ),
     );
     await waitFor(() => stored(d) === before + n, 10_000, `all rows (have ${stored(d) - before})`);

@@ -42,6 +42,15 @@ beforeAll(async () => {
   });
   dev = fleet.devices;
   sites = fleet.siteIds;
+  // The hub opens a socket only for a live account and sign-in session, or an unrevoked display link.
+  const now = Date.now();
+  t.db.$client
+    .prepare("INSERT INTO users (id, email, name, password_hash, role, created_at, updated_at) VALUES (1, 'ana@airkeep.demo', 'Ana', '-', 'viewer', ?, ?)")
+    .run(now, now);
+  t.db.$client.prepare("INSERT INTO user_sessions (id, user_id, created_at, last_seen_at) VALUES ('s-ana', 1, ?, ?)").run(now, now);
+  t.db.$client
+    .prepare("INSERT INTO display_links (id, token_hash, label, site_ids, created_by, created_at) VALUES (3, 'h3', 'South bay', ?, 1, ?)")
+    .run(JSON.stringify([sites.get("south")]), now);
   broker = await startBroker({ db: t.db, port: 0, ingestPassword: INGEST_PASSWORD, log: () => {} });
   url = `mqtt://127.0.0.1:${broker.port}`;
   ingester = await startIngester({
@@ -77,7 +86,7 @@ async function device(id: string, extra = {}): Promise<MqttClient> {
 type Live = { ws: WebSocket; messages: LiveMessage[] };
 
 function openLive(opts: { token?: string | null; origin?: string }): Promise<Live | { status: number }> {
-  const token = opts.token === undefined ? createLiveToken({ userId: 1, siteIds: null }, SECRET) : opts.token;
+  const token = opts.token === undefined ? createLiveToken({ userId: 1, sessionId: "s-ana", siteIds: null }, SECRET) : opts.token;
   const q = token === null ? "" : `?token=${encodeURIComponent(token)}`;
   return new Promise((resolve, reject) => {
     const ws = new WebSocket(`ws://127.0.0.1:${ingester.livePort}/live${q}`, { origin: opts.origin ?? ORIGIN });
@@ -152,7 +161,7 @@ describe("rejections (counted per reason; the stream carries on)", () => {
     await send("{ not json");
     await send(JSON.stringify(telemetry({ deliveryBar: "high" as unknown as number })));
     await send(`${JSON.stringify(telemetry({ ts: now - 10_000 })).slice(0, -1)},"oilBar":-1e999}`.replace(/"oilBar":4.5,/, ""));
-    await send(JSON.stringify(telemetry({ deliveryBar: 9_999 })));
+    await send(JSON.stringify(telemetry({ deliveryBar: -9_999 })));
     await send(JSON.stringify(telemetry({ ts: now + 10 * 60_000 })));
     await send(JSON.stringify(telemetry({ ts: now - 8 * 86_400_000 })));
     await send(JSON.stringify(telemetry({ ts: now - 2_000, seq: 77 })));
@@ -190,10 +199,10 @@ describe("live WebSocket access", () => {
     const before = ingester.stats().live!;
     expect(await openLive({ token: null })).toEqual({ status: 401 });
     expect(await openLive({ token: "abc.def" })).toEqual({ status: 401 });
-    expect(await openLive({ token: createLiveToken({ userId: 1, siteIds: null }, "some-other-secret-0123456789") })).toEqual({
+    expect(await openLive({ token: createLiveToken({ userId: 1, sessionId: "s-ana", siteIds: null }, "some-other-secret-0123456789") })).toEqual({
       status: 401,
     });
-    const expired = createLiveToken({ userId: 1, siteIds: null, ttlMs: 60_000 }, SECRET, Date.now() - 61_000);
+    const expired = createLiveToken({ userId: 1, sessionId: "s-ana", siteIds: null, ttlMs: 60_000 }, SECRET, Date.now() - 61_000);
     expect(await openLive({ token: expired })).toEqual({ status: 401 });
     expect(await openLive({ origin: "http://evil.test" })).toEqual({ status: 403 });
     const after = ingester.stats().live!;

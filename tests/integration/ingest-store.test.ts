@@ -54,17 +54,26 @@ describe("reading store", () => {
 
   it("keeps one raw row per (compressor, time) and counts replays as duplicates", () => {
     const store = createReadingStore(t.db);
-    expect(store.insert([r1, r2, r3])).toEqual({ inserted: 3, duplicates: 0 });
-    expect(store.insert([r2, r3, { ...r3, deliveryBar: 999 }])).toEqual({ inserted: 0, duplicates: 3 });
+    expect(store.insert([r1, r2, r3])).toEqual({ inserted: 3, duplicates: 0, conflicts: 0 });
+    expect(store.insert([r2, r3, { ...r3, deliveryBar: 999 }])).toEqual({ inserted: 0, duplicates: 3, conflicts: 0 });
     expect(count(t.db, "SELECT count(*) AS n FROM readings")).toBe(3);
     expect(count(t.db, "SELECT delivery_bar AS n FROM readings WHERE ts = ?", r3.ts)).toBe(220);
     expect(rollup(t, "readings_1m", 1, T).n).toBe(2);
   });
 
+  it("counts another reading (other seq) in a stored millisecond as a conflict, not as a duplicate", () => {
+    const store = createReadingStore(t.db);
+    store.insert([r1, r2]);
+    expect(store.insert([{ ...r2, seq: r2.seq + 1, deliveryBar: 211 }, r2])).toEqual({ inserted: 0, duplicates: 1, conflicts: 1 });
+    expect(store.around(1, r2.ts)).toEqual({ at: r2.seq, before: { seq: r1.seq, ts: r1.ts }, after: null });
+    expect(store.around(1, r2.ts - 1)).toEqual({ at: null, before: { seq: r1.seq, ts: r1.ts }, after: { seq: r2.seq, ts: r2.ts } });
+    expect(count(t.db, "SELECT delivery_bar AS n FROM readings WHERE ts = ?", r2.ts)).toBe(210);
+  });
+
   it("maintains 1-minute and 1-hour rollups that match a hand computation, across batches and a restart", () => {
     createReadingStore(t.db).insert([r3, r1, r2]); // out of order within a batch is fine
     const afterRestart = createReadingStore(t.db); // a new process: the previous reading comes from the rollup
-    expect(afterRestart.insert([r4, r5, r6, r2])).toEqual({ inserted: 3, duplicates: 1 });
+    expect(afterRestart.insert([r4, r5, r6, r2])).toEqual({ inserted: 3, duplicates: 1, conflicts: 0 });
 
     // Minute 0 holds r1, r2. Time: r1→r2 30 s running, r2→r3 [40 s, 60 s) 20 s running.
     expect(rollup(t, "readings_1m", 1, T)).toMatchObject({
@@ -166,7 +175,7 @@ describe("reading store", () => {
     await new Promise((resolve) => worker.once("message", resolve));
     // Without a raw row to write first, the store reads before it writes: a deferred transaction would see the other
     // commit land under it and fail with SQLITE_BUSY_SNAPSHOT; an immediate one waits for the lock (busy timeout).
-    expect(store.insert([r2], { keepRaw: false })).toEqual({ inserted: 1, duplicates: 0 });
+    expect(store.insert([r2], { keepRaw: false })).toEqual({ inserted: 1, duplicates: 0, conflicts: 0 });
     await new Promise((resolve) => worker.once("exit", resolve));
     expect(count(t.db, "SELECT count(*) AS n FROM settings WHERE key = 'other-writer'")).toBe(1);
     expect(rollup(t, "readings_1m", 1, T).n).toBe(2);
@@ -175,11 +184,11 @@ describe("reading store", () => {
   it("folds readings into the rollups without keeping raw rows, and recognises a replay of them", () => {
     const store = createReadingStore(t.db);
     const rows = [r1, r2, r3, r4].map((r) => ({ ...r, compressorId: 2 }));
-    expect(store.insert(rows, { keepRaw: false })).toEqual({ inserted: 4, duplicates: 0 });
+    expect(store.insert(rows, { keepRaw: false })).toEqual({ inserted: 4, duplicates: 0, conflicts: 0 });
     expect(count(t.db, "SELECT count(*) AS n FROM readings")).toBe(0);
     expect(rollup(t, "readings_1m", 2, T)).toMatchObject({ n: 2, delivery_bar_sum: 410, run_s: 50 });
     expect(rollup(t, "readings_1h", 2, T)).toMatchObject({ n: 4, covered_s: 90, run_s: 60 });
-    expect(createReadingStore(t.db).insert(rows, { keepRaw: false })).toEqual({ inserted: 0, duplicates: 4 });
+    expect(createReadingStore(t.db).insert(rows, { keepRaw: false })).toEqual({ inserted: 0, duplicates: 4, conflicts: 0 });
     expect(rollup(t, "readings_1h", 2, T)).toMatchObject({ n: 4, covered_s: 90, run_s: 60 });
   });
 

@@ -173,7 +173,15 @@ describe("display links", () => {
     expect(stored.h).not.toContain(token);
     expect(link).toMatchObject({ label: "Control room", siteIds: [siteB], siteNames: ["Bravo"], createdByName: "Ada Admin" });
 
-    expect(resolveDisplayLink(db, token, NOW + 1)).toEqual({ status: "ok", id: link.id, label: "Control room", siteIds: [siteB] });
+    // A new wall screen is dark, in bar and °C, until an administrator says otherwise.
+    expect(resolveDisplayLink(db, token, NOW + 1)).toEqual({
+      status: "ok",
+      id: link.id,
+      label: "Control room",
+      siteIds: [siteB],
+      theme: "dark",
+      units: { pressureUnit: "bar", temperatureUnit: "C" },
+    });
     expect(listDisplayLinks(db).find((l) => l.id === link.id)!.lastUsedAt).toBe(NOW + 1);
     expect(resolveDisplayLink(db, "x".repeat(43))).toEqual({ status: "unknown" });
     expect(resolveDisplayLink(db, "short")).toEqual({ status: "unknown" });

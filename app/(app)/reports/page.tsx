@@ -1,4 +1,5 @@
 import { dehydrate, HydrationBoundary } from "@tanstack/react-query";
+import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { reportQueries } from "@/components/queries/reports";
 import { makeQueryClient } from "@/components/query-client";
@@ -9,14 +10,20 @@ import { buildMonthlyReport } from "@/db/reports";
 import { listSites } from "@/db/sites";
 import { pageUser } from "@/lib/auth/current-user";
 import { parseScope, reportQuerySchema } from "@/shared/availability";
-import { monthHasBegun, monthOf, previousMonth } from "@/shared/month";
+import { monthHasBegun, monthLabel, monthOf, previousMonth } from "@/shared/month";
 
 export const dynamic = "force-dynamic";
-export const metadata = { title: "Reports" };
 
 type Props = { searchParams: Promise<Record<string, string | string[] | undefined>> };
 
 const first = (v: string | string[] | undefined) => (Array.isArray(v) ? v[0] : v);
+
+export async function generateMetadata({ searchParams }: Props): Promise<Metadata> {
+  const user = await pageUser("reports.view");
+  const zone = listSites(getDb(), user.siteIds)[0]?.timeZone ?? "UTC";
+  const month = reportQuerySchema.shape.month.safeParse(first((await searchParams).month) ?? previousMonth(Date.now(), zone));
+  return { title: month.success ? `Report · ${monthLabel(month.data)}` : "Reports" };
+}
 
 export default async function ReportsPage({ searchParams }: Props) {
   const user = await pageUser("reports.view");

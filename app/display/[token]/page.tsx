@@ -1,6 +1,7 @@
 import { dehydrate, HydrationBoundary } from "@tanstack/react-query";
 import { forbidden, notFound } from "next/navigation";
 import { Board } from "@/components/board/board";
+import { Providers } from "@/components/providers";
 import { liveQueries } from "@/components/queries/live";
 import { makeQueryClient } from "@/components/query-client";
 import { loadBoard } from "@/db/board";
@@ -20,8 +21,10 @@ export default async function DisplayPage({ params }: { params: Promise<{ token:
   const client = makeQueryClient();
   await client.prefetchQuery({ ...liveQueries.board(source), queryFn: () => loadBoard(db, access.siteIds) });
   return (
-    <HydrationBoundary state={dehydrate(client)}>
-      <Board source={source} title={access.label} />
-    </HydrationBoundary>
+    <Providers units={access.units}>
+      <HydrationBoundary state={dehydrate(client)}>
+        <Board source={source} title={access.label} theme={access.theme} />
+      </HydrationBoundary>
+    </Providers>
   );
 }

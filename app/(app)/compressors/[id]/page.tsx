@@ -1,4 +1,5 @@
 import { dehydrate, HydrationBoundary } from "@tanstack/react-query";
+import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { CompressorLive } from "@/components/compressor/compressor-live";
@@ -16,7 +17,6 @@ import { compressorIdSchema, type CompressorDetail } from "@/shared/board";
 import type { CompressorDto } from "@/shared/compressor-schema";
 
 export const dynamic = "force-dynamic";
-export const metadata = { title: "Compressor" };
 
 type Props = { params: Promise<{ id: string }> };
 
@@ -28,6 +28,11 @@ async function viewable(params: Props["params"]): Promise<CompressorDto> {
   // Outside the person's sites reads exactly like a compressor that does not exist.
   if (!compressor || !inScope(user, compressor.siteId)) notFound();
   return compressor;
+}
+
+export async function generateMetadata({ params }: Props): Promise<Metadata> {
+  const compressor = await viewable(params);
+  return { title: `${compressor.name} · ${compressor.siteName}` };
 }
 
 const DEFAULT_SIGNAL = "deliveryBar" as const;
