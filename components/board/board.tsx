@@ -222,6 +222,8 @@ function useBoardTheme(fixed: Theme | undefined): [Theme, (t: Theme) => void] {
   useEffect(() => {
     if (fixed) return;
     const saved = window.localStorage.getItem(THEME_KEY);
+    // Browser-only value, read after hydration so the server's HTML and the first client render agree.
+    // eslint-disable-next-line react-hooks/set-state-in-effect
     if (saved === "dark" || saved === "light") setChosen(saved);
   }, [fixed]);
   const set = useCallback((t: Theme) => {
@@ -237,6 +239,8 @@ function useFullscreen(ref: RefObject<HTMLElement | null>) {
   const [active, setActive] = useState(false);
   const [supported, setSupported] = useState(false);
   useEffect(() => {
+    // Browser-only value, read after hydration so the server's HTML and the first client render agree.
+    // eslint-disable-next-line react-hooks/set-state-in-effect
     setSupported(document.fullscreenEnabled === true);
     const onChange = () => setActive(document.fullscreenElement !== null && document.fullscreenElement === ref.current);
     document.addEventListener("fullscreenchange", onChange);
