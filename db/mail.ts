@@ -1,5 +1,5 @@
 import { randomBytes } from "node:crypto";
-import { and, count, desc, eq, lt, or, sql } from "drizzle-orm";
+import { and, count, desc, eq, lt, not, or, sql } from "drizzle-orm";
 import type { MailboxItemDto, MailboxMessageDto, MailboxPage, MailboxQuery, OutboxItemDto, OutboxStatus, OutboxSummary } from "@/shared/notify-mailbox";
 import type { Db } from "./client";
 import { mailOutbox, mailReceived, settings, type MailOutboxRow, type MailReceivedRow } from "./schema";
@@ -47,26 +47,55 @@ export function outboxByKey(db: Db, key: string): MailOutboxRow | null {
 const priorityOrder = sql`CASE ${mailOutbox.priority} WHEN 'critical' THEN 0 WHEN 'warning' THEN 1 WHEN 'advisory' THEN 2 ELSE 3 END`;
 
 /**
- * Claims the most urgent due row for sending: pending → sending, with this sender's token and one more attempt.
- * A single UPDATE, so two senders never claim the same row.
+ * A later mail of a notice thread (escalation, re-alarm, all-clear) waits while a first notice of the same thread is
+ * still unsettled (first notices are the kinds "raise" and "digest"), so the next in the chain never hears before the person told first. Only pending/sending rows are
+ * looked at, through the status index.
  */
-export function claimNextOutbox(db: Db, now: number, token: string): MailOutboxRow | null {
-  const due = db
+const heldBehindFirstNotice = sql`(${mailOutbox.threadId} IS NOT NULL AND ${mailOutbox.kind} NOT IN ('raise', 'digest') AND EXISTS (
+  SELECT 1 FROM mail_outbox AS f
+  WHERE f.status IN ('pending', 'sending') AND f.thread_id = ${mailOutbox.threadId} AND f.kind IN ('raise', 'digest')))`;
+
+/**
+ * Rows put back for connection trouble: the server never answered, so nothing about the message itself is wrong
+ * (a 4xx/5xx refusal stores the server's reply in server_response).
+ */
+const deferredForConnection = sql`(${mailOutbox.serverResponse} IS NULL AND ${mailOutbox.lastError} IS NOT NULL)`;
+
+/**
+ * Claims the most urgent due row for sending: pending → sending, with this sender's token and one more attempt.
+ * A single UPDATE, so two senders never claim the same row. `probe`: a row deferred for connection trouble may be
+ * taken before its own back-off ends (to find out whether the server is back).
+ */
+export function claimNextOutbox(db: Db, now: number, token: string, opts: { probe?: boolean } = {}): MailOutboxRow | null {
+  const due = opts.probe ? or(sql`${mailOutbox.nextAttemptAt} <= ${now}`, deferredForConnection) : sql`${mailOutbox.nextAttemptAt} <= ${now}`;
+  const row = db
     .select({ id: mailOutbox.id })
     .from(mailOutbox)
-    .where(and(eq(mailOutbox.status, "pending"), sql`${mailOutbox.nextAttemptAt} <= ${now}`))
+    .where(and(eq(mailOutbox.status, "pending"), due, not(heldBehindFirstNotice)))
     .orderBy(priorityOrder, mailOutbox.nextAttemptAt, mailOutbox.id)
     .limit(1)
     .get();
-  if (!due) return null;
+  if (!row) return null;
   return (
     db
       .update(mailOutbox)
       .set({ status: "sending", claimToken: token, claimedAt: now, attempts: sql`${mailOutbox.attempts} + 1`, updatedAt: now })
-      .where(and(eq(mailOutbox.id, due.id), eq(mailOutbox.status, "pending")))
+      .where(and(eq(mailOutbox.id, row.id), eq(mailOutbox.status, "pending")))
       .returning()
       .get() ?? null
   );
+}
+
+/**
+ * The server took a message: every row waiting out its own back-off for connection trouble is due again, back in
+ * queue order (next attempt = when it was queued). Returns how many were released.
+ */
+export function releaseDeferredOutbox(db: Db, now: number): number {
+  return db
+    .update(mailOutbox)
+    .set({ nextAttemptAt: mailOutbox.createdAt, updatedAt: now })
+    .where(and(eq(mailOutbox.status, "pending"), sql`${mailOutbox.nextAttemptAt} > ${now}`, deferredForConnection))
+    .run().changes;
 }
 
 /** sending → sent, only while the claim is still this sender's. */

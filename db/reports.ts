@@ -4,7 +4,8 @@ import { priorities } from "@/shared/alarm-rules";
 import {
   alarmBenchmarks,
   assessAlarmLoad,
-  FLOOD_THRESHOLD,
+  busiestTenMinutes,
+  floodEpisodes,
   STALE_AFTER_MS,
   TEN_MINUTES_MS,
   type AlarmLoadFigures,
@@ -15,8 +16,11 @@ import {
   addSplits,
   availabilityOf,
   clipIntervals,
+  hasData,
   mtbfSeconds,
+  mtbfBasis,
   mttrSeconds,
+  NO_DATA,
   NO_PLANNED_SERVICE_NOTE,
   pairDeviceEvents,
   pairPlannedService,
@@ -478,6 +482,7 @@ function rowOf(
     failures,
     restorations: restorations.length,
     mtbfS: mtbfSeconds(split.runningS, failures),
+    mtbfUpS: mtbfSeconds(split.runningS + split.standbyS, failures),
     mttrS: mttrSeconds(restorations),
     longestOutage: longestOf(cms, now),
     openTrips: cms.reduce((a, c) => a + c.outages.filter((o) => o.kind === "trip" && o.end === null).length, 0),
@@ -625,7 +630,6 @@ export function alarmLoad(
 ): AlarmLoadFigures {
   const { from, to } = window;
   const periodS = Math.max(0, (to - from) / 1000);
-  const tenMinutePeriods = Math.ceil((to - from) / TEN_MINUTES_MS);
   const only = opts.compressorId ? " AND compressor_id = $c" : "";
   const p = { site: siteId, from, to, c: opts.compressorId ?? null };
   const byPriority = Object.fromEntries(priorities.map((x) => [x, 0])) as Record<Priority, number>;
@@ -637,16 +641,13 @@ export function alarmLoad(
     byPriority[r.priority] = r.n;
   }
   const alarms = priorities.reduce((a, x) => a + byPriority[x], 0);
-  const flood = one<{ flood: number | null; peak: number | null; peakBucket: number | null }>(
-    db,
-    `WITH buckets AS (
-       SELECT CAST((raised_at - $from) / ${TEN_MINUTES_MS} AS INTEGER) AS b, COUNT(*) AS n FROM alarms
-       WHERE site_id = $site AND raised_at >= $from AND raised_at < $to${only} GROUP BY b
-     )
-     SELECT SUM(n > ${FLOOD_THRESHOLD}) AS flood, MAX(n) AS peak, (SELECT b FROM buckets ORDER BY n DESC, b LIMIT 1) AS peakBucket
-     FROM buckets`,
-    p,
-  );
+  // Raise times from 10 minutes before the period, so the flood rate at its start is right.
+  const times = prepared(db, `SELECT raised_at FROM alarms WHERE site_id = $site AND raised_at >= $from - ${TEN_MINUTES_MS} AND raised_at < $to${only} ORDER BY raised_at`)
+    .pluck()
+    .all(p) as number[];
+  const floods = floodEpisodes(times, from, to, positions);
+  const floodS = floods.reduce((a, e) => a + (e.end - e.start), 0) / 1000;
+  const peak = busiestTenMinutes(times.filter((t) => t >= from));
   const topRows = all<{ compressorId: number; compressorName: string; key: string; priority: Priority; n: number }>(
     db,
     `SELECT a.compressor_id AS compressorId, COALESCE(c.name, '#' || a.compressor_id) AS compressorName, a.key AS key,
@@ -691,14 +692,14 @@ export function alarmLoad(
     siteId,
     positions,
     periodS,
-    tenMinutePeriods,
     alarms,
     perHour: hours > 0 ? alarms / hours / positions : 0,
     perDay: hours > 0 ? (alarms / hours) * 24 / positions : 0,
-    floodPeriods: flood?.flood ?? 0,
-    floodShare: tenMinutePeriods > 0 ? (flood?.flood ?? 0) / tenMinutePeriods : 0,
-    peakTenMinute: flood?.peak ?? 0,
-    peakTenMinuteAt: flood?.peakBucket != null ? from + flood.peakBucket * TEN_MINUTES_MS : null,
+    floods: floods.length,
+    floodS,
+    floodShare: periodS > 0 ? floodS / periodS : 0,
+    peakTenMinute: peak.count,
+    peakTenMinuteAt: peak.at,
     top,
     topShare: alarms ? top.reduce((a, t) => a + t.count, 0) / alarms : null,
     chatteringOccurrences: chatter.occurrences,
@@ -813,6 +814,7 @@ export function buildComparison(db: Db, req: ReportRequest & { months?: number }
       starts: row.starts,
       failures: row.failures,
       mtbfS: row.mtbfS,
+      mtbfUpS: row.mtbfUpS,
       mttrS: row.mttrS,
       alarms,
       alarmsPerHour: alarmHours > 0 ? alarms / alarmHours : null,
@@ -872,6 +874,7 @@ export function reportRecipients(db: Db, siteId: number): { userId: number; name
 const alarmBenchmarksById = (id: string) => alarmBenchmarks.find((b) => b.id === id)!;
 const esc = (s: string) => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 const pctText = (x: number | null, d = 2) => (x == null ? "—" : `${(x * 100).toFixed(d)} %`);
+const availabilityText = (x: number | null) => (x == null ? NO_DATA : `${(x * 100).toFixed(2)} %`);
 const hText = (s: number) => `${(s / 3600).toFixed(1)} h`;
 
 function durText(seconds: number | null): string {
@@ -901,11 +904,16 @@ export function buildMonthlyReportMail(db: Db, siteId: number, month: Month, opt
   const link = `${base}/reports?month=${month}&scope=${scope}`;
   const printLink = `${base}/reports/print?month=${month}&scope=${scope}`;
   const label = monthLabel(month);
-  const subject = `Airkeep monthly report, ${label} — ${period.siteName}: availability ${pctText(f.availability)}`;
+  // A month nothing was recorded in is not a month at 0 %: the mail says there is no data instead.
+  const empty = !hasData(t.split);
+  const subject = `Airkeep monthly report, ${label} — ${period.siteName}: ${empty ? "no data recorded this month" : `availability ${availabilityText(f.availability)}`}`;
+  const emptyNote = empty
+    ? "No readings and no planned service were recorded at this site in this period, so no availability, run hours or failure figures can be given. Check the compressors' connections to Airkeep."
+    : null;
   const periodText = `${label} in ${period.timeZone}: ${localDateTimeOf(period.from, period.timeZone)} to ${localDateTimeOf(period.partial ? period.to : period.monthEnd, period.timeZone)} local time, ${period.hours} h${period.partial ? " (month to date)" : ""}${period.lengthNote ? ` — ${period.lengthNote}` : ""}`;
   const headline: [string, string][] = [
-    ["Availability (planned service counted as down)", pctText(f.availability)],
-    ["Availability (planned service excluded)", pctText(f.availabilityExPlanned)],
+    ["Availability (planned service counted as down)", availabilityText(f.availability)],
+    ["Availability (planned service excluded)", availabilityText(f.availabilityExPlanned)],
     ["Data coverage", pctText(f.coverage, 1)],
     ["Run hours", `${hText(t.split.runningS)}${t.hourMeterAdvanceH != null ? ` (hour meter +${t.hourMeterAdvanceH.toFixed(1)} h)` : ""}`],
     ["Starts", t.starts == null ? "—" : `${t.starts}${t.startsPerRunHour != null ? ` (${t.startsPerRunHour.toFixed(2)} per running hour)` : ""}`],
@@ -913,7 +921,8 @@ export function buildMonthlyReportMail(db: Db, siteId: number, month: Month, opt
     ["Down: planned service", `${hText(t.split.plannedS)}${report.plannedService.recorded ? "" : ` — ${report.plannedService.note}`}`],
     ["No data (offline)", hText(t.split.noDataS)],
     ["Failures (trips)", `${t.failures}${t.openTrips ? ` (${t.openTrips} not reset)` : ""}`],
-    ["MTBF", t.mtbfS == null ? "— (no failures)" : hText(t.mtbfS)],
+    [mtbfBasis.running.label, t.mtbfS == null ? "— (no failures)" : `${hText(t.mtbfS)} (running hours ÷ failures)`],
+    [mtbfBasis.up.label, t.mtbfUpS == null ? "— (no failures)" : `${hText(t.mtbfUpS)} (up hours ÷ failures)`],
     ["MTTR (mean time to restoration)", t.mttrS == null ? "—" : durText(t.mttrS)],
     ["Longest outage", t.longestOutage ? `${durText(t.longestOutage.durationS)} (${t.longestOutage.cause})` : "—"],
   ];
@@ -923,7 +932,7 @@ export function buildMonthlyReportMail(db: Db, siteId: number, month: Month, opt
   const safety = SAFETY_NOTICE;
   const definitions = [
     "Availability = up time (running + standby) ÷ period; time without data is never counted as up. With planned service excluded: up time ÷ (period − planned service).",
-    "Failure = a trip reported by the machine (an emergency stop is down time, not a failure). MTBF = running hours ÷ failures (IEC 60050-192, 192-05-13). MTTR = mean time from trip to reset (192-07-23).",
+    "Failure = a trip reported by the machine (an emergency stop is down time, not a failure). MTBF is given on two bases: running hours ÷ failures (mean operating time between failures, IEC 60050-192, 192-05-13) and up hours (running + standby) ÷ failures (≈ mean up time). MTTR = mean time from trip to reset (192-07-23).",
     "Alarm load per operator position against ANSI/ISA-18.2 and EEMUA 191; sources and the values recalled from memory are listed in the full report.",
   ];
 
@@ -932,12 +941,13 @@ export function buildMonthlyReportMail(db: Db, siteId: number, month: Month, opt
     report.organisation ? `Organisation: ${report.organisation}` : null,
     `Period: ${periodText}`,
     "",
+    ...(emptyNote ? [emptyNote, ""] : []),
     ...headline.map(([k, v]) => `${k}: ${v}`),
     "",
     "Per compressor:",
     ...compressors.map(
       (r) =>
-        `  ${r.name}: availability ${pctText(r.figures.availability)}, running ${hText(r.split.runningS)}, fault ${hText(r.split.faultS)}, planned ${hText(r.split.plannedS)}, no data ${hText(r.split.noDataS)}, starts ${r.starts ?? "—"}, failures ${r.failures}`,
+        `  ${r.name}: availability ${availabilityText(r.figures.availability)}, running ${hText(r.split.runningS)}, fault ${hText(r.split.faultS)}, planned ${hText(r.split.plannedS)}, no data ${hText(r.split.noDataS)}, starts ${r.starts ?? "—"}, failures ${r.failures}`,
     ),
     "",
     load ? `Alarm load (${load.figures.positions} operator position${load.figures.positions === 1 ? "" : "s"}): ${load.figures.alarms} alarms` : null,
@@ -960,13 +970,14 @@ export function buildMonthlyReportMail(db: Db, siteId: number, month: Month, opt
 <h1 style="font-size:20px;margin:0 0 4px">Airkeep monthly report — ${esc(period.siteName)}</h1>
 ${report.organisation ? `<p style="margin:0">${esc(report.organisation)}</p>` : ""}
 <p style="margin:4px 0 12px;color:#555b63">${esc(periodText)}</p>
+${emptyNote ? `<p style="margin:4px 0 12px"><strong>${esc(emptyNote)}</strong></p>` : ""}
 <table style="border-collapse:collapse;font-size:14px">${headline.map(([k, v]) => `<tr><td ${td}>${esc(k)}</td><td ${num}>${esc(v)}</td></tr>`).join("")}</table>
 <h2 style="font-size:16px;margin:16px 0 4px">Per compressor</h2>
 <table style="border-collapse:collapse;font-size:14px"><tr><th ${th}>Compressor</th><th ${th}>Availability</th><th ${th}>Running</th><th ${th}>Fault</th><th ${th}>Planned</th><th ${th}>No data</th><th ${th}>Starts</th><th ${th}>Failures</th></tr>
 ${compressors
   .map(
     (r) =>
-      `<tr><td ${td}>${esc(r.name)}</td><td ${num}>${pctText(r.figures.availability)}</td><td ${num}>${hText(r.split.runningS)}</td><td ${num}>${hText(r.split.faultS)}</td><td ${num}>${hText(r.split.plannedS)}</td><td ${num}>${hText(r.split.noDataS)}</td><td ${num}>${r.starts ?? "—"}</td><td ${num}>${r.failures}</td></tr>`,
+      `<tr><td ${td}>${esc(r.name)}</td><td ${num}>${availabilityText(r.figures.availability)}</td><td ${num}>${hText(r.split.runningS)}</td><td ${num}>${hText(r.split.faultS)}</td><td ${num}>${hText(r.split.plannedS)}</td><td ${num}>${hText(r.split.noDataS)}</td><td ${num}>${r.starts ?? "—"}</td><td ${num}>${r.failures}</td></tr>`,
   )
   .join("")}</table>
 ${

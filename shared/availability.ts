@@ -69,27 +69,40 @@ export type AvailabilityFigures = {
   upS: number;
   /** Fault + planned service. */
   downS: number;
-  /** Up time / period: planned service and time without data count against it. Null for an empty period. */
+  /**
+   * Up time / period: planned service and time without data count against it. Null — "no data", never 0 % — for an
+   * empty period or one with neither a reading nor planned service in it.
+   */
   availability: number | null;
-  /** Up time / (period − planned service): planned service left out of the reckoning. */
+  /** Up time / (period − planned service): planned service left out of the reckoning. Null like `availability`. */
   availabilityExPlanned: number | null;
   /** Share of the period with readings or a planned-service record. */
   coverage: number | null;
 };
 
+/** Some reading or planned-service record covers at least a second of the period. */
+export const hasData = (s: TimeSplit): boolean => s.periodS - s.noDataS >= 1;
+
+/** What a figure shows when there was nothing to compute it from: never 0 %. */
+export const NO_DATA = "no data";
+
 export function availabilityOf(s: TimeSplit): AvailabilityFigures {
   const upS = s.runningS + s.standbyS;
   const exPlanned = s.periodS - s.plannedS;
+  const known = hasData(s);
   return {
     upS,
     downS: s.faultS + s.plannedS,
-    availability: s.periodS > 0 ? upS / s.periodS : null,
-    availabilityExPlanned: exPlanned > 0 ? upS / exPlanned : null,
+    availability: known && s.periodS > 0 ? upS / s.periodS : null,
+    availabilityExPlanned: known && exPlanned > 0 ? upS / exPlanned : null,
     coverage: s.periodS > 0 ? (s.periodS - s.noDataS) / s.periodS : null,
   };
 }
 
-/** IEV 192-05-13: mean operating time between failures = operating time / number of failures (null without failures). */
+/**
+ * Time per failure (null without failures). On running time it estimates IEV 192-05-13, mean operating time between
+ * failures; on up time (running + standby) it estimates the mean up time (MUT). The report gives both, labelled.
+ */
 export function mtbfSeconds(operatingS: number, failures: number): number | null {
   return failures > 0 ? operatingS / failures : null;
 }
@@ -173,6 +186,12 @@ export function pairDeviceEvents(events: readonly StateEvent[]): Outage[] {
   }
   return out;
 }
+
+/** How each MTBF is labelled wherever it is shown (page, print, CSV, e-mail). */
+export const mtbfBasis = {
+  running: { label: "MTBF, running-time basis", column: "MTBF (running) h", note: "Running hours ÷ failures (IEC 60050-192, 192-05-13)" },
+  up: { label: "MTBF, up-time basis", column: "MTBF (up time) h", note: "Up hours (running + standby) ÷ failures (≈ mean up time, IEC 60050-192)" },
+} as const;
 
 export type Interval = { from: number; to: number };
 
@@ -268,10 +287,13 @@ export function formatHours(seconds: number | null | undefined, decimals = 1): s
   return (seconds / 3600).toFixed(decimals);
 }
 
-export function formatPercent(share: number | null | undefined, decimals = 1): string {
-  if (share == null || !Number.isFinite(share)) return "—";
+export function formatPercent(share: number | null | undefined, decimals = 1, empty = "—"): string {
+  if (share == null || !Number.isFinite(share)) return empty;
   return (share * 100).toFixed(decimals);
 }
+
+/** An availability as the report prints it: "97.25", or "no data" when nothing covered the period. */
+export const formatAvailability = (share: number | null | undefined): string => formatPercent(share, 2, NO_DATA);
 
 /** "3 h 05 min", "42 min", "2 d 04 h" */
 export function formatDuration(seconds: number | null | undefined): string {
@@ -339,7 +361,7 @@ export const availabilityTerms: readonly Term[] = [
   {
     term: "No data (offline)",
     definition:
-      "Time no reading covers (a gap of more than 2 minutes between readings is not bridged). It is never counted as up time, so availability is a lower bound when data coverage is below 100 %.",
+      "Time no reading covers (a gap of more than 2 minutes between readings is not bridged). It is never counted as up time, so availability is a lower bound when data coverage is below 100 %. A month, day or compressor with no data at all shows “no data”, never 0 %.",
   },
   {
     term: "Availability",
@@ -356,10 +378,17 @@ export const availabilityTerms: readonly Term[] = [
       "A trip reported by the machine. An emergency stop (an operator's trip) is down time but not a failure.",
   },
   {
-    term: "MTBF",
+    term: "MTBF, running-time basis",
     iev: "192-05-13",
     ievNote: `mean operating time between failures; ${IEV_SECONDARY}`,
-    definition: "Operating (running) time in the period ÷ number of failures that began in it. Not given without failures.",
+    definition:
+      "Operating (running) time in the period ÷ number of failures that began in it: the wear-related figure, comparable between a busy and an idle compressor. Not given without failures.",
+  },
+  {
+    term: "MTBF, up-time basis",
+    ievNote: "mean up time (MUT), “the expectation of the up time” (ITU-T E.800, from the IEV); entry number not checked",
+    definition:
+      "Up time (running + standby) in the period ÷ number of failures that began in it: how long the compressor stayed available between failures. For a compressor that spends most of its up time in standby it is several times the running-time figure. Not given without failures.",
   },
   {
     term: "MTTR",
@@ -426,7 +455,10 @@ export type AvailabilityRow = {
   startsPerRunHour: number | null;
   failures: number;
   restorations: number;
+  /** MTBF on running (operating) time: running ÷ failures. */
   mtbfS: number | null;
+  /** MTBF on up time: (running + standby) ÷ failures. */
+  mtbfUpS: number | null;
   mttrS: number | null;
   longestOutage: OutageSummary | null;
   /** Trips still not reset at the end of the period. */
@@ -516,6 +548,7 @@ export type ComparisonRow = {
   starts: number | null;
   failures: number;
   mtbfS: number | null;
+  mtbfUpS: number | null;
   mttrS: number | null;
   alarms: number;
   alarmsPerHour: number | null;

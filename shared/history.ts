@@ -1,2 +1,2 @@
-/** How far the demo's history backfill has got; the web shows a notice while it runs. */
-export type BackfillStatus = { running: boolean; percent: number; startedAt: number; updatedAt: number };
+/** A running backfill of the demo's history, as signed-in pages show it. */
+export type BackfillStatus = { running: true; percent: number; since: number };

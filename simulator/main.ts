@@ -1,5 +1,6 @@
 import { parseArgs } from "node:util";
 import { openDatabase } from "../db/client";
+import { clearHistoryBackfill, markHistoryBackfill } from "../db/history-backfill";
 import { backfill } from "./backfill";
 import { backfillProgress } from "./backfill-progress";
 import { defaultDevicesPath, defaultStatePath, readDevicesFile } from "./devices";
@@ -100,6 +101,8 @@ if (flags.backfill !== undefined) {
   for (const f of faults) if (!known.has(f.deviceId)) fail(`--fault names unknown device ${f.deviceId}`);
   const retentionDays = positive("retention-days", flags["retention-days"] ?? process.env.RETENTION_DAYS, 30);
   const db = openDatabase();
+  // While this stands (and this process lives), the monthly report e-mails wait for the history to be complete.
+  markHistoryBackfill(db, process.pid);
   try {
     const res = backfill({
       db,
@@ -132,6 +135,7 @@ if (flags.backfill !== undefined) {
     writeCounters(statePath, res.counters);
     log(`backfill done in ${(res.elapsedMs / 1000).toFixed(1)} s: ${rows} readings (${raw} raw), ${events} device events`);
   } finally {
+    clearHistoryBackfill(db);
     db.$client.close();
   }
 } else {

@@ -8,7 +8,8 @@ import { SafetyNotice } from "@/components/safety-notice";
 import { SignOutButton } from "@/components/sign-out-button";
 import { UnitsPicker } from "@/components/units-picker";
 import { getDb } from "@/db/client";
-import { readBackfillStatus } from "@/db/history-status";
+import { backfillStatus } from "@/db/history-backfill";
+import { processAlive } from "@/lib/process-alive";
 import { pageUser } from "@/lib/auth/current-user";
 import { roleLabels } from "@/shared/roles";
 
@@ -30,7 +31,7 @@ export default async function SignedInLayout({ children }: { children: ReactNode
             <SignOutButton />
           </div>
         </header>
-        <HistoryNotice initial={readBackfillStatus(getDb())} />
+        <HistoryNotice initial={backfillStatus(getDb(), processAlive)} />
         <main className="flex-1 px-4 py-4">{children}</main>
         <SafetyNotice sticky compact />
         <CriticalToast />

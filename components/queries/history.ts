@@ -7,6 +7,6 @@ export const historyQueries = {
     queryOptions({
       queryKey: ["history", "backfill"],
       queryFn: () => getJson<{ backfill: BackfillStatus | null }>("/api/history-status").then((r) => r.backfill),
-      refetchInterval: (q) => (q.state.data?.running ? 5_000 : false),
+      refetchInterval: (q) => (q.state.data ? 5_000 : false),
     }),
 };

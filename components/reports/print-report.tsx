@@ -1,8 +1,10 @@
 import { alarmBenchmarks, priorityLevel } from "@/shared/alarm-load";
 import {
+  formatAvailability,
   formatDuration,
   formatHours,
   formatPercent,
+  mtbfBasis,
   type CauseRow,
   type ComparisonReport,
   type DailyRow,
@@ -196,7 +198,8 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
               <th className={thr}>Excl. planned %</th>
               <th className={thr}>Starts</th>
               <th className={thr}>Failures</th>
-              <th className={thr}>MTBF h</th>
+              <th className={thr}>{mtbfBasis.running.column}</th>
+              <th className={thr}>{mtbfBasis.up.column}</th>
               <th className={thr}>MTTR</th>
             </tr>
           </thead>
@@ -212,11 +215,12 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
                 <td className={tdr}>{formatHours(r.split.faultS)}</td>
                 <td className={tdr}>{formatHours(r.split.plannedS)}</td>
                 <td className={tdr}>{formatHours(r.split.noDataS)}</td>
-                <td className={tdr}>{formatPercent(r.figures.availability, 2)}</td>
-                <td className={tdr}>{formatPercent(r.figures.availabilityExPlanned, 2)}</td>
+                <td className={tdr}>{formatAvailability(r.figures.availability)}</td>
+                <td className={tdr}>{formatAvailability(r.figures.availabilityExPlanned)}</td>
                 <td className={tdr}>{r.starts ?? "—"}</td>
                 <td className={tdr}>{r.failures}</td>
                 <td className={tdr}>{formatHours(r.mtbfS)}</td>
+                <td className={tdr}>{formatHours(r.mtbfUpS)}</td>
                 <td className={tdr}>{formatDuration(r.mttrS)}</td>
               </tr>
             ))}
@@ -345,7 +349,8 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
                 <th className={thr}>Coverage %</th>
                 <th className={thr}>Fault h</th>
                 <th className={thr}>Failures</th>
-                <th className={thr}>MTBF h</th>
+                <th className={thr}>{mtbfBasis.running.column}</th>
+                <th className={thr}>{mtbfBasis.up.column}</th>
                 <th className={thr}>MTTR</th>
                 <th className={thr}>Alarms</th>
               </tr>
@@ -358,12 +363,13 @@ export function PrintReport({ report, comparison }: { report: MonthlyReport; com
                     {m.partial ? " (to date)" : ""}
                   </td>
                   <td className={tdr}>{m.hoursMin === m.hoursMax ? m.hoursMin : `${m.hoursMin}–${m.hoursMax}`}</td>
-                  <td className={tdr}>{formatPercent(m.figures.availability, 2)}</td>
-                  <td className={tdr}>{formatPercent(m.figures.availabilityExPlanned, 2)}</td>
+                  <td className={tdr}>{formatAvailability(m.figures.availability)}</td>
+                  <td className={tdr}>{formatAvailability(m.figures.availabilityExPlanned)}</td>
                   <td className={tdr}>{formatPercent(m.figures.coverage)}</td>
                   <td className={tdr}>{formatHours(m.split.faultS)}</td>
                   <td className={tdr}>{m.failures}</td>
                   <td className={tdr}>{formatHours(m.mtbfS)}</td>
+                  <td className={tdr}>{formatHours(m.mtbfUpS)}</td>
                   <td className={tdr}>{formatDuration(m.mttrS)}</td>
                   <td className={tdr}>{m.alarms}</td>
                 </tr>

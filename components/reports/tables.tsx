@@ -2,12 +2,14 @@
 
 import type { ReactNode } from "react";
 import { DataTable, type DataColumn } from "@/components/data-table";
-import { alarmBenchmarks, priorityLevel, type StaleAlarm, type TopAlarm } from "@/shared/alarm-load";
+import { alarmBenchmarks, priorityLevel, TEN_MINUTES_MS, type StaleAlarm, type TopAlarm } from "@/shared/alarm-load";
 import {
   eventsHref,
+  formatAvailability,
   formatDuration,
   formatHours,
   formatPercent,
+  mtbfBasis,
   reportCsvHref,
   reportHref,
   type AlarmLoadSite,
@@ -130,7 +132,7 @@ export function AvailabilityTable({ report }: { report: MonthlyReport }) {
       sortValue: (r) => r.figures.availability,
       cell: (r) => (
         <a href={eventsHref({ ...rowFilter(r), ...span })} aria-label={`Events of the month: ${r.name}`}>
-          {formatPercent(r.figures.availability, 2)}
+          {formatAvailability(r.figures.availability)}
         </a>
       ),
     },
@@ -139,7 +141,7 @@ export function AvailabilityTable({ report }: { report: MonthlyReport }) {
       header: "Excl. planned %",
       numeric: true,
       sortValue: (r) => r.figures.availabilityExPlanned,
-      cell: (r) => formatPercent(r.figures.availabilityExPlanned, 2),
+      cell: (r) => formatAvailability(r.figures.availabilityExPlanned),
     },
     { id: "coverage", header: "Data coverage %", numeric: true, sortValue: (r) => r.figures.coverage, cell: (r) => formatPercent(r.figures.coverage) },
     {
@@ -171,7 +173,8 @@ export function AvailabilityTable({ report }: { report: MonthlyReport }) {
           0
         ),
     },
-    { id: "mtbf", header: "MTBF h", numeric: true, sortValue: (r) => r.mtbfS, cell: (r) => formatHours(r.mtbfS) },
+    { id: "mtbf", header: mtbfBasis.running.column, numeric: true, sortValue: (r) => r.mtbfS, cell: (r) => formatHours(r.mtbfS) },
+    { id: "mtbf-up", header: mtbfBasis.up.column, numeric: true, sortValue: (r) => r.mtbfUpS, cell: (r) => formatHours(r.mtbfUpS) },
     { id: "mttr", header: "MTTR", numeric: true, sortValue: (r) => r.mttrS, cell: (r) => formatDuration(r.mttrS) },
     {
       id: "longest",
@@ -303,6 +306,10 @@ export function BenchmarkTable({ site }: { site: AlarmLoadSite }) {
       cell: (r) =>
         r.id === "rate" || r.id === "flood" || r.id === "priority" ? (
           <a href={eventsHref({ site: site.siteId, kind: "alarm", from: site.from, to: site.to })}>events ›</a>
+        ) : r.id === "peak" && site.figures.peakTenMinuteAt != null ? (
+          <a href={eventsHref({ site: site.siteId, kind: "alarm", from: site.figures.peakTenMinuteAt, to: site.figures.peakTenMinuteAt + TEN_MINUTES_MS })}>
+            busiest 10 min ›
+          </a>
         ) : null,
     },
   ];
@@ -394,8 +401,8 @@ export function ComparisonTable({ rows, scope, current }: { rows: readonly Compa
         ),
     },
     { id: "hours", header: "Hours", numeric: true, sortValue: (m) => m.hoursMax, cell: (m) => `${hoursRange(m)}${m.partial ? " (to date)" : ""}` },
-    { id: "availability", header: "Availability %", numeric: true, sortValue: (m) => m.figures.availability, cell: (m) => formatPercent(m.figures.availability, 2) },
-    { id: "ex", header: "Excl. planned %", numeric: true, sortValue: (m) => m.figures.availabilityExPlanned, cell: (m) => formatPercent(m.figures.availabilityExPlanned, 2) },
+    { id: "availability", header: "Availability %", numeric: true, sortValue: (m) => m.figures.availability, cell: (m) => formatAvailability(m.figures.availability) },
+    { id: "ex", header: "Excl. planned %", numeric: true, sortValue: (m) => m.figures.availabilityExPlanned, cell: (m) => formatAvailability(m.figures.availabilityExPlanned) },
     { id: "coverage", header: "Coverage %", numeric: true, sortValue: (m) => m.figures.coverage, cell: (m) => formatPercent(m.figures.coverage) },
     { id: "running", header: "Running h", numeric: true, sortValue: (m) => m.split.runningS, cell: (m) => formatHours(m.split.runningS) },
     { id: "fault", header: "Fault h", numeric: true, sortValue: (m) => m.split.faultS, cell: (m) => formatHours(m.split.faultS) },
@@ -403,7 +410,8 @@ export function ComparisonTable({ rows, scope, current }: { rows: readonly Compa
     { id: "nodata", header: "No data h", numeric: true, sortValue: (m) => m.split.noDataS, cell: (m) => formatHours(m.split.noDataS) },
     { id: "starts", header: "Starts", numeric: true, sortValue: (m) => m.starts, cell: (m) => m.starts ?? "—" },
     { id: "failures", header: "Failures", numeric: true, sortValue: (m) => m.failures, cell: (m) => m.failures },
-    { id: "mtbf", header: "MTBF h", numeric: true, sortValue: (m) => m.mtbfS, cell: (m) => formatHours(m.mtbfS) },
+    { id: "mtbf", header: mtbfBasis.running.column, numeric: true, sortValue: (m) => m.mtbfS, cell: (m) => formatHours(m.mtbfS) },
+    { id: "mtbf-up", header: mtbfBasis.up.column, numeric: true, sortValue: (m) => m.mtbfUpS, cell: (m) => formatHours(m.mtbfUpS) },
     { id: "mttr", header: "MTTR", numeric: true, sortValue: (m) => m.mttrS, cell: (m) => formatDuration(m.mttrS) },
     { id: "alarms", header: "Alarms", numeric: true, sortValue: (m) => m.alarms, cell: (m) => m.alarms },
     {

@@ -10,7 +10,7 @@ import { parseArgs } from "node:util";
 import { comparisonCsv, reportCsv } from "@/lib/reports/csv";
 import { openDatabase } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
-import { buildComparison, buildMonthlyReport, buildMonthlyReportMail } from "@/db/reports";
+import { alarmLoad, buildComparison, buildMonthlyReport, buildMonthlyReportMail } from "@/db/reports";
 import { HOUR_MS, monthsEndingWith, monthWindow, shiftMonth } from "@/shared/month";
 
 const { values: args } = parseArgs({
@@ -228,11 +228,17 @@ time("every CSV table of the fleet report", () => {
   return comparisonCsv(cmp.result);
 });
 time("monthly e-mail, one site", () => buildMonthlyReportMail(db, 1, MONTH, { now })!);
+const floods = time("alarm load of 5 sites (sliding-window floods, busiest 10 min)", () =>
+  fleet.result.periods.map((p) => alarmLoad(db, p.siteId, { from: p.from, to: p.to, days: [] }, p.positions, now)),
+);
 
 const t = fleet.result.total;
 console.log(
   `\n  fleet ${MONTH}: period ${(t.split.periodS / 3600).toFixed(0)} compressor-h (per site: ${fleet.result.periods.map((p) => `${p.hours} h`).join(", ")}), availability ${(t.figures.availability! * 100).toFixed(2)} %` +
     ` (excl. planned ${(t.figures.availabilityExPlanned! * 100).toFixed(2)} %), coverage ${(t.figures.coverage! * 100).toFixed(2)} %, ${t.failures} failures, MTBF ${t.mtbfS ? (t.mtbfS / 3600).toFixed(1) : "—"} h, MTTR ${t.mttrS ? (t.mttrS / 60).toFixed(0) : "—"} min, ${fleet.result.outages.length} outages, ${fleet.result.alarmLoad.reduce((a, s) => a + s.figures.alarms, 0)} alarms`,
+);
+console.log(
+  `  MTBF on up time ${t.mtbfUpS ? (t.mtbfUpS / 3600).toFixed(1) : "—"} h; alarm floods ${floods.result.map((f) => `${f.floods} (${(f.floodShare * 100).toFixed(3)} % of the time), busiest 10 min ${f.peakTenMinute}`).join("; ")}`,
 );
 const target = 1000;
 const verdict = fleet.median < target && fleet.cold < target ? "within" : "OVER";

@@ -1,4 +1,6 @@
 import path from "node:path";
+import { databasePath, openDatabase } from "@/db/client";
+import { clearHistoryBackfill, markHistoryBackfill } from "@/db/history-backfill";
 import { bundleNodeProgram, programFlags } from "./node-bundle";
 import { runJob, startProcess } from "./processes";
 
@@ -27,6 +29,9 @@ export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions
   }
   startProcess("ingester", process.execPath, await program("ingester"), env);
   where.push(`Live       ws://${env.LIVE_HOST ?? "127.0.0.1"}:${env.LIVE_PORT ?? "3001"} (WebSocket hub)`);
+  const backfillDays = opts.simulator ? (opts.backfillDays ?? 0) : 0;
+  // Set before the mail process starts, so its first look at due monthly reports already sees history coming.
+  if (backfillDays > 0) withDatabase(env, (db) => markHistoryBackfill(db, process.pid));
   startProcess("mail", process.execPath, await program("mail"), env);
   where.push(
     env.SMTP_URL
@@ -41,10 +46,20 @@ export async function startServices(env: NodeJS.ProcessEnv, opts: ServiceOptions
     void (async () => {
       if (days > 0) {
         const code = await runJob("backfill", tsx, ["simulator/main.ts", "--backfill", `${days}d`], env);
+        withDatabase(env, clearHistoryBackfill);
         if (code !== 0) console.error(`[airkeep] backfill ended with ${code}; the live simulator starts anyway.`);
       }
       startProcess("simulator", tsx, ["simulator/main.ts", "--opening"], env);
     })();
   }
   return where;
+}
+
+function withDatabase(env: NodeJS.ProcessEnv, fn: (db: ReturnType<typeof openDatabase>) => void) {
+  const db = openDatabase(databasePath(env.DATABASE_URL));
+  try {
+    fn(db);
+  } finally {
+    db.$client.close();
+  }
 }

@@ -14,6 +14,8 @@ export type MailConfig = {
   pollMs: number;
   retryBaseMs: number;
   retryMaxMs: number;
+  /** MAIL_PROBE_S (2): while the server is unreachable, one queued message is tried this often ahead of its back-off. */
+  probeMs: number;
   /** A message the server refuses outright (5xx) is given up after this many attempts; connection trouble never gives up. */
   maxRejections: number;
   /** A claim older than this belongs to a sender that died mid-send. */
@@ -43,6 +45,7 @@ export function mailConfigFromEnv(env: Env = process.env): MailConfig {
     pollMs: num(env, "MAIL_POLL_MS", 1000, 50, 600_000),
     retryBaseMs: num(env, "MAIL_RETRY_BASE_S", 10, 0.01, 3600) * 1000,
     retryMaxMs: num(env, "MAIL_RETRY_MAX_S", 900, 0.01, 86_400) * 1000,
+    probeMs: num(env, "MAIL_PROBE_S", 2, 0.05, 3600) * 1000,
     maxRejections: num(env, "MAIL_MAX_REJECTIONS", 5, 1, 1000),
     claimTimeoutMs: num(env, "MAIL_CLAIM_TIMEOUT_S", 120, 1, 86_400) * 1000,
     sendTimeoutMs: num(env, "MAIL_SEND_TIMEOUT_S", 30, 1, 3600) * 1000,

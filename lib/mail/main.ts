@@ -46,9 +46,12 @@ function redactedUrl(url: string): string {
 }
 
 const REPORT_CHECK_MS = 5 * 60_000;
+let reportsDeferred = false;
 function queueReports() {
   try {
     const r = queueMonthlyReportMails(db, Date.now(), { from: mail.from, baseUrl: notify.baseUrl });
+    if (r.deferred && !reportsDeferred) console.log("[mail] monthly report e-mails wait: history is still being written (backfill)");
+    reportsDeferred = Boolean(r.deferred);
     if (r.queued) {
       console.log(`[mail] queued ${r.queued} monthly report e-mail(s) for ${r.reports} report(s)`);
       sender.kick();

@@ -11,6 +11,7 @@ import {
   markOutboxFailed,
   markOutboxSent,
   receivedByMessageId,
+  releaseDeferredOutbox,
   settleStaleClaim,
   staleClaims,
 } from "@/db/mail";
@@ -28,6 +29,10 @@ import { messageIdFor } from "./message-id";
 //   and sending → sent only after the server's 250 reply to DATA. Two senders never send the same row.
 // - Failure: connection trouble and 4xx replies put the row back to pending with exponential backoff (never given up,
 //   so an SMTP outage loses nothing); a 5xx refusal is retried too but given up ("failed") after MAIL_MAX_REJECTIONS.
+// - Recovery: while the server is unreachable, one message is tried every MAIL_PROBE_S ahead of its own back-off; the
+//   first delivery releases every row deferred for connection trouble, so the backlog drains at once and in queue order.
+// - Order within a notice thread: an escalation, re-alarm or all-clear is not sent while a first notice of the same
+//   thread is still pending (db/mail.ts), so the next contact never hears before the person told first.
 // - Crash between the server's acceptance and our "sent" mark: the row is left in "sending". After
 //   MAIL_CLAIM_TIMEOUT_S it is settled. If the server is known to have the message (the built-in fake shares this
 //   database, so its mailbox is checked for the Message-ID) the row is marked sent: at-most-once. Otherwise Airkeep
@@ -98,7 +103,8 @@ export function enqueueMail(db: Db, mail: NewMail, opts: { from: string; now?: n
 export type SenderOptions = Pick<
   MailConfig,
   "smtpUrl" | "from" | "pollMs" | "retryBaseMs" | "retryMaxMs" | "maxRejections" | "claimTimeoutMs" | "sendTimeoutMs"
-> & {
+> &
+  Partial<Pick<MailConfig, "probeMs">> & {
   db: Db;
   /** Whether the SMTP server is known to hold a message with this Message-ID (used to settle stale claims). */
   acceptedProbe?: (messageId: string) => { serverMessageId: string | null } | null;
@@ -141,6 +147,9 @@ export function smtpTransportOptions(smtpUrl: string, timeoutMs: number): SMTPTr
 
 type SmtpError = Error & { code?: string; responseCode?: number; response?: string };
 
+/** nodemailer's and Node's codes for a server that cannot be reached or talked to. */
+const CONNECTION_ERRORS = new Set(["ECONNECTION", "ETIMEDOUT", "ESOCKET", "EDNS", "ETLS", "EPROTOCOL", "ECONNREFUSED", "ECONNRESET", "EHOSTUNREACH", "ENETUNREACH", "EPIPE"]);
+
 /** "250 Message queued as 42" → "42"; other servers' replies are kept whole in serverResponse. */
 export function serverMessageIdOf(response: string | undefined): string | null {
   if (!response) return null;
@@ -163,6 +172,10 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
   let again = false;
   let closed = false;
   let serverDown = false;
+  // From this time on a row deferred for connection trouble may be tried before its own back-off ends (0: at once,
+  // so a sender restarted during an outage finds out soon whether the server is back).
+  let probeAt = 0;
+  const probeMs = opts.probeMs ?? 2000;
 
   const event = (row: MailOutboxRow, action: string, text: string, details: Record<string, unknown> = {}) =>
     appendEvent(db, {
@@ -221,7 +234,11 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
     } catch (e) {
       const err = e as SmtpError;
       const now = Date.now();
-      const rejected = typeof err.responseCode === "number" && err.responseCode >= 500;
+      const answered = typeof err.responseCode === "number";
+      // The server never answered: the message itself is not at fault (never given up; released when the server is back).
+      const connection = !answered && err.response === undefined && (err.code === undefined || CONNECTION_ERRORS.has(err.code));
+      // A 5xx refusal, or a fault of the message itself found before sending (e.g. EENVELOPE): given up in the end.
+      const rejected = answered ? err.responseCode! >= 500 : !connection;
       const giveUp = rejected && row.attempts >= opts.maxRejections;
       const delay = retryDelayMs(row.attempts, opts.retryBaseMs, opts.retryMaxMs, opts.jitter ?? 0.1);
       const message = `${err.code ?? "ERROR"}${err.responseCode ? ` ${err.responseCode}` : ""}: ${err.message}`;
@@ -229,7 +246,8 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
         status: giveUp ? "failed" : "pending",
         nextAttemptAt: now + delay,
         error: message,
-        serverResponse: err.response ?? null,
+        // Only rows without a server response count as deferred for connection trouble (db/mail.ts).
+        serverResponse: err.response ?? (connection ? null : message),
       });
       if (giveUp) {
         event(row, "mail.failed", `E-mail to ${row.toName} <${row.toAddress}> refused by the mail server, given up after ${row.attempts} attempts: ${row.subject}`, {
@@ -246,17 +264,21 @@ export function startOutboxSender(opts: SenderOptions): OutboxSender {
     const result = { sent: 0, failed: 0 };
     settleStale(Date.now());
     while (!closed) {
-      const row = claimNextOutbox(db, Date.now(), token);
+      const now = Date.now();
+      const row = claimNextOutbox(db, now, token, { probe: now >= probeAt });
       if (!row) break;
       const outcome = await sendOne(row);
       if (outcome === "sent") {
         result.sent++;
         if (serverDown) log("mail server reachable again");
         serverDown = false;
+        const released = releaseDeferredOutbox(db, Date.now());
+        if (released) log(`${released} message(s) waiting out their back-off released: the server takes mail again`);
       } else if (outcome === "unreachable") {
         result.failed++;
         if (!serverDown) log(`mail server ${new URL(opts.smtpUrl).host} unreachable; mail stays queued and is retried with backoff`);
         serverDown = true;
+        probeAt = Date.now() + probeMs;
         break; // the next due rows would fail the same way: wait for the next poll
       } else if (outcome === "rejected") result.failed++;
     }

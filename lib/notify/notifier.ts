@@ -3,7 +3,7 @@ import type { Db } from "@/db/client";
 import { appendEvent } from "@/db/events";
 import { alarms, notifyAlarms, notifyThreads, type NotifyThreadRow } from "@/db/schema";
 import { enqueueMail, type NewMail } from "@/lib/mail/outbox";
-import type { Priority } from "@/shared/alarm-rules";
+import { priorities, type Priority } from "@/shared/alarm-rules";
 import { isStorm, nextInChain, type Recipient } from "@/shared/notify-routing";
 import {
   composeAlarmMail,
@@ -36,7 +36,9 @@ import { loadNoticeAlarms, loadRoutingContext, routingFor, type NoticeRow, type 
 //   the same row (new raise time), that is a new occurrence with its own thread "alarm:<id>@<raisedAt>".
 // - Digest: when more than DIGEST_THRESHOLD alarms were raised at one site inside DIGEST_WINDOW_MIN (or more than that
 //   many wait at once), new alarms there go into one digest mail instead of one mail each, and further alarms are
-//   held for at most one window, then sent as the next digest. A digest escalates and clears as a whole.
+//   held for at most one window, then sent as the next digest. A digest escalates and clears as a whole. Critical
+//   alarms are never held (one raised while a window is open is e-mailed on its own at once), and alarms that notify
+//   nobody neither count toward a storm nor join a digest.
 //
 // Idempotency keys of the mails: "<thread>:raise:<level>:to:<contact>" (level 0 = first notice),
 // "<thread>:again:<marker>:to:<contact>", "<thread>:resolved:to:<contact>"; threads are "alarm:<id>" or
@@ -233,6 +235,18 @@ class Pass {
 
   private handleSite(siteId: number, pending: Pending[]) {
     const window = this.cfg.digestWindowMs;
+    const rows = loadNoticeAlarms(this.db, pending.map((p) => p.id));
+    const members = pending.map((p) => rows.get(p.id)).filter((a): a is NoticeRow => a !== undefined);
+    if (!members.length) return;
+    const again = (a: NoticeRow) => pending.find((p) => p.id === a.id)?.again ?? false;
+
+    // Alarms that notify nobody (no rule or rota matches their priority) never count toward a storm and never go into a
+    // digest: each gets its own thread, which records "nobody to e-mail" and looks again later.
+    const notifying = new Set(priorities.filter((p) => this.notifiesSomeone(siteId, p)));
+    for (const a of members.filter((m) => !notifying.has(m.priority))) this.firstNotice(a, again(a));
+    const told = members.filter((m) => notifying.has(m.priority));
+    if (!told.length) return;
+
     const lastDigest = this.db
       .select()
       .from(notifyThreads)
@@ -240,26 +254,37 @@ class Pass {
       .orderBy(desc(notifyThreads.windowStart))
       .limit(1)
       .get();
-    // A digest window is open: hold new alarms for the next digest.
-    if (lastDigest?.windowEnd != null && lastDigest.windowEnd > this.now) return;
+    // A digest window is open: hold new alarms for the next digest — except critical ones, which are never held.
+    if (lastDigest?.windowEnd != null && lastDigest.windowEnd > this.now) {
+      for (const a of told.filter((m) => m.priority === "critical")) this.firstNotice(a, again(a));
+      return;
+    }
 
     const recent =
       this.db
         .select({ n: sql<number>`count(*)` })
         .from(alarms)
-        .where(and(eq(alarms.siteId, siteId), gt(alarms.raisedAt, this.now - window), notInArray(alarms.state, [...NOT_COUNTED])))
+        .where(
+          and(
+            eq(alarms.siteId, siteId),
+            gt(alarms.raisedAt, this.now - window),
+            notInArray(alarms.state, [...NOT_COUNTED]),
+            inArray(alarms.priority, [...notifying]),
+          ),
+        )
         .get()?.n ?? 0;
-    const held = lastDigest?.windowEnd != null && pending.some((a) => a.raisedAt < lastDigest.windowEnd! && a.raisedAt >= lastDigest.windowStart - window);
-
-    const rows = loadNoticeAlarms(this.db, pending.map((p) => p.id));
-    const members = pending.map((p) => rows.get(p.id)).filter((a): a is NoticeRow => a !== undefined);
-    if (!members.length) return;
+    const held = lastDigest?.windowEnd != null && told.some((a) => a.raisedAt < lastDigest.windowEnd! && a.raisedAt >= lastDigest.windowStart - window);
 
     // A storm: many raised at the site lately, alarms held from the last digest, or many waiting at once (e.g. after
-    // the notifier was stopped for a while).
-    const storm = isStorm(recent, this.cfg.digestThreshold) || isStorm(members.length, this.cfg.digestThreshold) || held;
-    if (storm) this.openDigest(siteId, members);
-    else for (const a of members) this.firstNotice(a, pending.find((p) => p.id === a.id)?.again ?? false);
+    // the notifier was stopped for a while). A digest opened now goes out at once, critical members included.
+    const storm = isStorm(recent, this.cfg.digestThreshold) || isStorm(told.length, this.cfg.digestThreshold) || held;
+    if (storm) this.openDigest(siteId, told);
+    else for (const a of told) this.firstNotice(a, again(a));
+  }
+
+  private notifiesSomeone(siteId: number, priority: Priority): boolean {
+    const r = routingFor(this.ctx, siteId, priority, this.now, this.cfg.escalateAfterMs);
+    return r.chain.length + r.copies.length > 0;
   }
 
   private firstNotice(a: NoticeRow, again: boolean) {

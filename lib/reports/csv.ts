@@ -1,4 +1,4 @@
-import type { AlarmLoadSite, ComparisonReport, CsvTable, MonthlyReport, TimeSplit } from "@/shared/availability";
+import { NO_DATA, type AlarmLoadSite, type ComparisonReport, type CsvTable, type MonthlyReport, type TimeSplit } from "@/shared/availability";
 import { alarmBenchmarks, priorityLevel } from "@/shared/alarm-load";
 import { csvText } from "@/shared/csv";
 import { localDateTime } from "@/shared/month";
@@ -21,6 +21,8 @@ export function toCsv(header: readonly string[], rows: readonly (readonly Cell[]
 
 const h = (s: number) => s / 3600;
 const pct = (x: number | null) => (x == null ? null : x * 100);
+/** An availability: "no data" rather than an empty cell or 0 when nothing covered the period. */
+const availabilityPct = (x: number | null) => (x == null ? NO_DATA : x * 100);
 const iso = (ts: number | null) => (ts == null ? null : new Date(ts).toISOString());
 
 const splitHeader = ["period_h", "running_h", "standby_h", "fault_h", "planned_service_h", "no_data_h"];
@@ -49,7 +51,8 @@ export function reportCsv(table: Exclude<CsvTable, "comparison">, r: MonthlyRepo
           "starts_per_run_h",
           "failures",
           "restorations",
-          "mtbf_h",
+          "mtbf_running_h",
+          "mtbf_up_h",
           "mttr_h",
           "longest_outage_h",
           "open_trips",
@@ -60,8 +63,8 @@ export function reportCsv(table: Exclude<CsvTable, "comparison">, r: MonthlyRepo
           x.siteName,
           x.timeZone,
           ...splitCells(x.split),
-          pct(x.figures.availability),
-          pct(x.figures.availabilityExPlanned),
+          availabilityPct(x.figures.availability),
+          availabilityPct(x.figures.availabilityExPlanned),
           pct(x.figures.coverage),
           h(x.split.runningS),
           x.hourMeterAdvanceH,
@@ -70,6 +73,7 @@ export function reportCsv(table: Exclude<CsvTable, "comparison">, r: MonthlyRepo
           x.failures,
           x.restorations,
           x.mtbfS == null ? null : h(x.mtbfS),
+          x.mtbfUpS == null ? null : h(x.mtbfUpS),
           x.mttrS == null ? null : h(x.mttrS),
           x.longestOutage ? h(x.longestOutage.durationS) : null,
           x.openTrips,
@@ -78,7 +82,7 @@ export function reportCsv(table: Exclude<CsvTable, "comparison">, r: MonthlyRepo
     case "daily":
       return toCsv(
         ["date", ...splitHeader, "availability_pct"],
-        r.daily.map((d) => [d.date, ...splitCells(d), pct(d.availability)]),
+        r.daily.map((d) => [d.date, ...splitCells(d), availabilityPct(d.availability)]),
       );
     case "downtime":
       return toCsv(
@@ -143,19 +147,20 @@ export function reportCsv(table: Exclude<CsvTable, "comparison">, r: MonthlyRepo
 
 export function comparisonCsv(c: ComparisonReport): string {
   return toCsv(
-    ["month", "partial", "hours_min", "hours_max", ...splitHeader, "availability_pct", "availability_ex_planned_pct", "data_coverage_pct", "starts", "failures", "mtbf_h", "mttr_h", "alarms", "alarms_per_site_hour"],
+    ["month", "partial", "hours_min", "hours_max", ...splitHeader, "availability_pct", "availability_ex_planned_pct", "data_coverage_pct", "starts", "failures", "mtbf_running_h", "mtbf_up_h", "mttr_h", "alarms", "alarms_per_site_hour"],
     c.months.map((m) => [
       m.month,
       m.partial,
       m.hoursMin,
       m.hoursMax,
       ...splitCells(m.split),
-      pct(m.figures.availability),
-      pct(m.figures.availabilityExPlanned),
+      availabilityPct(m.figures.availability),
+      availabilityPct(m.figures.availabilityExPlanned),
       pct(m.figures.coverage),
       m.starts,
       m.failures,
       m.mtbfS == null ? null : h(m.mtbfS),
+      m.mtbfUpS == null ? null : h(m.mtbfUpS),
       m.mttrS == null ? null : h(m.mttrS),
       m.alarms,
       m.alarmsPerHour,

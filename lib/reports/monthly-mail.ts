@@ -1,4 +1,6 @@
 import type { Db } from "@/db/client";
+import { historyBackfillMark } from "@/db/history-backfill";
+import { processAlive } from "@/lib/process-alive";
 import { buildMonthlyReportMail, dueMonthlyReports, reportMailKey, reportRecipients } from "@/db/reports";
 import type { MailOutboxRow } from "@/db/schema";
 import { enqueueMail } from "@/lib/mail/outbox";
@@ -13,7 +15,20 @@ const REPORT_KIND = "report" as unknown as MailOutboxRow["kind"];
 
 export const recipientKey = (siteId: number, month: string, userId: number) => `${reportMailKey(siteId, month)}:to:u${userId}`;
 
-export function queueMonthlyReportMails(db: Db, now: number, opts: { from: string; baseUrl?: string }): { reports: number; queued: number } {
+/** Whether the process with this id still runs (signal 0 only checks). */
+export type QueueResult = { reports: number; queued: number; deferred?: "history-backfill" };
+
+/**
+ * Queues what is due. While a live process is still writing history (the demo's backfill), nothing is queued: the
+ * report would count the unwritten part as "no data" and claim a bad month; the next call after it ends queues it.
+ */
+export function queueMonthlyReportMails(
+  db: Db,
+  now: number,
+  opts: { from: string; baseUrl?: string; alive?: (pid: number) => boolean },
+): QueueResult {
+  const mark = historyBackfillMark(db);
+  if (mark && (opts.alive ?? processAlive)(mark.pid)) return { reports: 0, queued: 0, deferred: "history-backfill" };
   const queuedKey = db.$client.prepare("SELECT 1 FROM mail_outbox WHERE key = ?");
   let reports = 0;
   let queued = 0;

@@ -81,6 +81,12 @@ test("a manager opens last month's report, drills into the outage and downloads 
   await expect(page.getByTestId("headline-failures").locator(".num")).toHaveText("1");
   await expect(page.getByTestId("headline-longest")).toContainText("3 h 00 min");
   await expect(page.getByTestId("planned-service-line")).toContainText("No planned service recorded.");
+  // MTBF on both bases, each labelled; a compressor without data reads "no data", never 0.00 %.
+  await expect(page.getByTestId("headline-mtbf")).toContainText("MTBF, running-time basis");
+  await expect(page.getByTestId("headline-mtbf-up")).toContainText("MTBF, up-time basis");
+  const table = page.getByTestId("availability-table");
+  await expect(table).toContainText("MTBF (up time) h");
+  await expect(table).toContainText("no data");
 
   const outage = page.getByTestId("outage-trip").filter({ hasText: "MB-1 Main" });
   await expect(outage).toHaveCount(1);

@@ -1,5 +1,5 @@
 import { afterEach, describe, expect, it } from "vitest";
-import { readBackfillStatus } from "@/db/history-status";
+import { backfillStatus, clearHistoryBackfill, historyBackfillMark, markHistoryBackfill } from "@/db/history-backfill";
 import { backfillProgress } from "@/simulator/backfill-progress";
 import { makeTempDb, type TempDb } from "./ingest-fixtures";
 
@@ -7,12 +7,12 @@ let t: TempDb;
 afterEach(() => t?.cleanup());
 
 describe("backfill progress", () => {
-  it("prints a line at most every interval, records the percentage, and ends not running", () => {
+  it("prints a line at most every interval and keeps the percentage on the history mark", () => {
     t = makeTempDb("airkeep-backfill-progress-");
     let clock = 1_000_000;
+    markHistoryBackfill(t.db, 4242, clock);
     const lines: string[] = [];
-    const report = backfillProgress(t.db, (l) => lines.push(l), { everyMs: 5_000, now: () => clock });
-    expect(readBackfillStatus(t.db, clock)).toMatchObject({ running: true, percent: 0 });
+    const report = backfillProgress(t.db, (l) => lines.push(l), { everyMs: 5_000, now: () => clock, pid: 4242 });
 
     report(100, 1_000); // first call prints
     clock += 1_000;
@@ -21,20 +21,21 @@ describe("backfill progress", () => {
     report(370, 1_000);
     expect(lines).toHaveLength(2);
     expect(lines[1]).toMatch(/^history 37 % written \(370 of 1,000 readings\), about \d+ s left$/);
-    expect(readBackfillStatus(t.db, clock)).toMatchObject({ running: true, percent: 37 });
+    expect(historyBackfillMark(t.db)).toEqual({ pid: 4242, since: 1_000_000, percent: 37 });
 
     clock += 100;
     report(1_000, 1_000); // the end always prints
     expect(lines).toHaveLength(3);
     expect(lines[2]).toBe("history 100 % written (1,000 of 1,000 readings)");
-    expect(readBackfillStatus(t.db, clock)).toMatchObject({ running: false, percent: 100 });
   });
 
-  it("a running status that has gone silent reads as not running (the job died)", () => {
+  it("the web sees a running backfill only while its mark stands and its process lives", () => {
     t = makeTempDb("airkeep-backfill-progress-");
-    const clock = 5_000_000;
-    backfillProgress(t.db, () => {}, { now: () => clock });
-    expect(readBackfillStatus(t.db, clock + 60_000)?.running).toBe(true);
-    expect(readBackfillStatus(t.db, clock + 121_000)?.running).toBe(false);
+    expect(backfillStatus(t.db, () => true)).toBeNull();
+    markHistoryBackfill(t.db, 77, 5_000);
+    expect(backfillStatus(t.db, (pid) => pid === 77)).toEqual({ running: true, percent: 0, since: 5_000 });
+    expect(backfillStatus(t.db, () => false)).toBeNull(); // the job died
+    clearHistoryBackfill(t.db);
+    expect(backfillStatus(t.db, () => true)).toBeNull();
   });
 });

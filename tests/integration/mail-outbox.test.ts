@@ -159,6 +159,24 @@ describe("SMTP server down, then up", () => {
   });
 });
 
+describe("a message at fault itself", () => {
+  it("does not stall the queue as if the server were down, and is given up after MAIL_MAX_REJECTIONS", async () => {
+    const fake = await fakeOn(0);
+    // No recipient address: nodemailer refuses it before talking to the server (EENVELOPE, no server reply).
+    enqueueMail(db, { key: "bad", kind: "test", priority: "critical", to: { name: "Nobody", address: "" }, subject: "Bad", text: "x", html: "<p>x</p>" }, { from: FROM });
+    queue(3, "good");
+    const s = sender(fake.url, { pollMs: 60_000, maxRejections: 2 });
+    const first = await s.runOnce();
+    // The bad row went first (critical) and the pass carried on to the others.
+    expect(first.sent).toBe(3);
+    const bad = rows().find((r) => r.key === "bad")!;
+    expect(bad.lastError).toMatch(/EENVELOPE/);
+    expect(bad.serverResponse).not.toBeNull(); // not mistaken for connection trouble: a later delivery does not release it
+    await waitFor(async () => (await s.runOnce(), rows().find((r) => r.key === "bad")!.status === "failed"), 5_000, "the bad row to be given up");
+    expect(rows().find((r) => r.key === "bad")!.attempts).toBe(2);
+  });
+});
+
 describe("two senders on one database", () => {
   it("never send the same row twice", async () => {
     const fake = await fakeOn(0);

@@ -3,12 +3,12 @@ import { afterAll, afterEach, beforeEach, describe, expect, it } from "vitest";
 import { acknowledgeAlarms } from "@/db/alarms";
 import { alarms, compressors, mailOutbox, mailReceived, thresholdLimits, thresholdSets, users } from "@/db/schema";
 import { createAlarmEngine, type AlarmEngine } from "@/db/alarm-engine";
-import { startOutboxSender, type OutboxSender } from "@/lib/mail/outbox";
+import type { OutboxSender } from "@/lib/mail/outbox";
 import { startSmtpFake, type SmtpFake } from "@/lib/mail/smtp-fake";
 import { notifyTick } from "@/lib/notify/notifier";
 import { SAFETY_NOTICE } from "@/shared/safety";
 import { runStateCode, type ReadingInput } from "@/shared/telemetry";
-import { MIN, openWorld, tempDir, testConfig, type World } from "./notify-fixtures";
+import { MIN, openWorld, tempDir, testConfig, testSender, type World } from "./notify-fixtures";
 
 // The whole path with the real alarm engine: readings → engine writes the alarm row → notifier → outbox → SMTP fake;
 // an acknowledgement through the alarms' own db function stops the escalation; the return to normal sends the all-clear.
@@ -32,19 +32,7 @@ beforeEach(async () => {
   w.db.insert(thresholdSets).values({ scopeType: "model", scopeId: modelId, version: 1, updatedAt: t0 }).run();
   engine = createAlarmEngine(w.db, { settings: { settlingS: 0, reAlarmS: 0, chatterCount: 3, chatterWindowS: 60 }, now: () => clock.now, log: () => {} });
   fake = await startSmtpFake({ db: w.db, port: 0, log: () => {} });
-  sender = startOutboxSender({
-    db: w.db,
-    smtpUrl: fake.url,
-    from: cfg.from,
-    pollMs: 60_000,
-    retryBaseMs: 20,
-    retryMaxMs: 100,
-    maxRejections: 3,
-    claimTimeoutMs: 60_000,
-    sendTimeoutMs: 5_000,
-    jitter: 0,
-    log: () => {},
-  });
+  sender = testSender(w.db, fake.url);
 });
 
 afterEach(async () => {

@@ -5,6 +5,7 @@ import { and, eq, ne } from "drizzle-orm";
 import { openDatabase, type Db } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { alarms, compressorModels, compressors, compressorState, contacts, notificationRules, onCallEntries, sites, users } from "@/db/schema";
+import { startOutboxSender, type OutboxSender, type SenderOptions } from "@/lib/mail/outbox";
 import type { NotifyConfig } from "@/lib/notify/config";
 import type { Priority } from "@/shared/alarm-rules";
 import type { AlarmState } from "@/shared/alarm-lifecycle";
@@ -29,6 +30,24 @@ export function testConfig(over: Partial<NotifyConfig> = {}): NotifyConfig {
     from: "Airkeep <alarms@airkeep.demo>",
     ...over,
   };
+}
+
+/** An outbox sender for the tests: no polling of its own (call runOnce), short retries, no jitter, quiet. */
+export function testSender(db: Db, smtpUrl: string, over: Partial<SenderOptions> = {}): OutboxSender {
+  return startOutboxSender({
+    db,
+    smtpUrl,
+    from: testConfig().from,
+    pollMs: 60_000,
+    retryBaseMs: 20,
+    retryMaxMs: 100,
+    maxRejections: 3,
+    claimTimeoutMs: 60_000,
+    sendTimeoutMs: 5_000,
+    jitter: 0,
+    log: () => {},
+    ...over,
+  });
 }
 
 export type World = {

@@ -2,12 +2,12 @@ import { and, eq } from "drizzle-orm";
 import { openDatabase } from "@/db/client";
 import { afterAll, afterEach, beforeEach, describe, expect, it } from "vitest";
 import { mailOutbox, mailReceived, alarms, events, notifyThreads } from "@/db/schema";
-import { mailboxProbe, startOutboxSender, type OutboxSender } from "@/lib/mail/outbox";
+import { mailboxProbe, type OutboxSender } from "@/lib/mail/outbox";
 import { startSmtpFake, type SmtpFake } from "@/lib/mail/smtp-fake";
 import { notifyTick } from "@/lib/notify/notifier";
 import { cautions, SAFETY_NOTICE } from "@/shared/safety";
 import { escapeHtml } from "@/shared/notify-text";
-import { MIN, acknowledge, clearAlarm, openWorld, raiseAlarm, setLastData, tempDir, testConfig, type World } from "./notify-fixtures";
+import { MIN, acknowledge, clearAlarm, openWorld, raiseAlarm, setLastData, tempDir, testConfig, testSender, type World } from "./notify-fixtures";
 
 // The notifier against a real SQLite file and the real SMTP fake on an ephemeral loopback port.
 
@@ -23,20 +23,7 @@ const t0 = Date.UTC(2025, 5, 2, 10, 0, 0);
 beforeEach(async () => {
   w = openWorld(tmp.file(`notify-${++n}.db`), t0);
   fake = await startSmtpFake({ db: w.db, port: 0, log: () => {} });
-  sender = startOutboxSender({
-    db: w.db,
-    smtpUrl: fake.url,
-    from: cfg.from,
-    pollMs: 60_000,
-    retryBaseMs: 20,
-    retryMaxMs: 100,
-    maxRejections: 3,
-    claimTimeoutMs: 60_000,
-    sendTimeoutMs: 5_000,
-    jitter: 0,
-    acceptedProbe: mailboxProbe(w.db),
-    log: () => {},
-  });
+  sender = testSender(w.db, fake.url, { acceptedProbe: mailboxProbe(w.db) });
 });
 
 afterEach(async () => {
@@ -255,19 +242,7 @@ describe("restart safety", () => {
     expect(outbox().length).toBe(before);
     expect(w.db.select().from(notifyThreads).all()).toHaveLength(3);
 
-    sender = startOutboxSender({
-      db: w.db,
-      smtpUrl: fake.url,
-      from: cfg.from,
-      pollMs: 60_000,
-      retryBaseMs: 20,
-      retryMaxMs: 100,
-      maxRejections: 3,
-      claimTimeoutMs: 60_000,
-      sendTimeoutMs: 5_000,
-      jitter: 0,
-      log: () => {},
-    });
+    sender = testSender(w.db, fake.url);
     await sender.runOnce();
     await sender.runOnce();
     const got = received();
@@ -318,13 +293,15 @@ describe("digest", () => {
     expect(digests[0]!.toAddress).toBe("olive@airkeep.demo");
     expect(digests[0]!.key).toMatch(new RegExp(`^digest:${w.london}:\\d+:raise:0:to:${w.onCall}$`));
 
-    // More during the window are held, then go out together in the next digest.
-    const held = [7, 8].map((m) => raiseAlarm(w.db, { compressorId: w.mb1, siteId: w.london, raisedAt: t0 + m * MIN, priority: "critical" }));
+    // More during the window are held, then go out together in the next digest; a critical one is never held.
+    const held = [7, 8].map((m) => raiseAlarm(w.db, { compressorId: w.mb1, siteId: w.london, raisedAt: t0 + m * MIN, priority: "warning" }));
+    const urgent = raiseAlarm(w.db, { compressorId: w.mb1, siteId: w.london, raisedAt: t0 + 8 * MIN + 30_000, priority: "critical" });
     notifyTick(w.db, cfg, t0 + 9 * MIN);
     expect(outbox().filter((o) => o.kind === "digest")).toHaveLength(1);
+    expect(outbox().filter((o) => o.alarmId === urgent && o.kind === "raise").map((o) => o.toAddress).sort()).toEqual(["olive@airkeep.demo", "watch@airkeep.demo"]);
     notifyTick(w.db, cfg, t0 + 16 * MIN + 2000);
-    const second = outbox().filter((o) => o.kind === "digest" && o.priority === "critical");
-    expect(second.map((o) => o.toAddress).sort()).toEqual(["olive@airkeep.demo", "watch@airkeep.demo"]);
+    const second = outbox().filter((o) => o.kind === "digest").slice(1);
+    expect(second.map((o) => o.toAddress)).toEqual(["olive@airkeep.demo"]); // warnings: the watch-room copy is for critical only
 
     // The storm is over: the next alarm, well after, is sent on its own again.
     const later = raiseAlarm(w.db, { compressorId: w.mb1, siteId: w.london, raisedAt: t0 + 40 * MIN, priority: "warning" });
@@ -338,8 +315,9 @@ describe("digest", () => {
     expect(first!.text).toContain("Already sent one by one in the same period:");
     expect(first!.text).toContain(SAFETY_NOTICE);
     for (const id of single) expect(first!.text).not.toContain(`alarms?id=${id}\n`);
-    const next = received().find((m) => m.subject.startsWith("[Critical] 2 alarms at Marrow Bay Fire Station") && m.envelopeTo.includes("olive@airkeep.demo"));
+    const next = received().find((m) => m.subject.startsWith("[Warning] 2 alarms at Marrow Bay Fire Station") && m.envelopeTo.includes("olive@airkeep.demo"));
     for (const id of held) expect(next!.text).toContain(`alarms?id=${id}`);
+    expect(next!.text).not.toContain(`alarms?id=${urgent}\n`);
   });
 
   it("a burst at one site becomes one message per recipient, and the digest escalates and clears as a whole", async () => {
@@ -361,5 +339,23 @@ describe("digest", () => {
     expect(digest!.text).toContain(cautions.hotStage);
     expect(received().filter((m) => m.envelopeTo.includes("oda@airkeep.demo"))).toHaveLength(2);
     expect(w.db.select().from(mailOutbox).where(and(eq(mailOutbox.status, "sent"))).all()).toHaveLength(4);
+  });
+
+  it("alarms that notify nobody neither open a digest nor hold a critical alarm back", async () => {
+    // Halden Ridge has no rule for advisory alarms: a burst of them reaches nobody and is no storm.
+    const quiet = Array.from({ length: 7 }, (_, i) =>
+      raiseAlarm(w.db, { compressorId: w.hr1, siteId: w.oslo, raisedAt: t0 + i * 1000, priority: "advisory", key: `adv.${i}`, signal: "intakeC" }),
+    );
+    const r = notifyTick(w.db, cfg, t0 + 10_000);
+    expect(r.digests).toBe(0);
+    expect(w.db.select().from(notifyThreads).where(eq(notifyThreads.kind, "digest")).all()).toHaveLength(0);
+    expect(w.db.select().from(events).where(eq(events.action, "mail.no_recipient")).all()).toHaveLength(quiet.length);
+
+    // A critical alarm right after goes out on its own in the next pass, not held for a digest window.
+    const critical = raiseAlarm(w.db, { compressorId: w.hr1, siteId: w.oslo, raisedAt: t0 + 20_000, priority: "critical" });
+    notifyTick(w.db, cfg, t0 + 21_000);
+    expect(outbox().filter((o) => o.alarmId === critical).map((o) => [o.kind, o.toAddress])).toEqual([["raise", "oda@airkeep.demo"]]);
+    await sender.runOnce();
+    expect(receivedBy("oda@airkeep.demo").map((m) => m.subject)).toEqual(["[Critical] HR-1 Bay compressor, Halden Ridge Fire Station: Final-stage temperature high"]);
   });
 });

@@ -247,7 +247,8 @@ describe("a month with missing data, trips and planned service (June 2026, Europ
     expect(gapDays).toHaveLength(10);
     for (const d of gapDays) {
       expect(d.noDataS / HS).toBeCloseTo(24, 6);
-      expect(d.availability).toBeCloseTo(0, 9);
+      // A day without data has no availability ("no data"), not 0 %.
+      expect(d.availability).toBeNull();
     }
   });
 
@@ -268,9 +269,12 @@ describe("a month with missing data, trips and planned service (June 2026, Europ
 
   it("MTBF, MTTR, longest outage, starts and hour meter", () => {
     const t = report.total;
-    // One failure (the emergency stop is not one): MTBF = 38 h / 1; MTTR = 3.5 h.
+    // One failure (the emergency stop is not one). Running time and up time differ twelvefold here (the unit idles in
+    // standby most of the month): MTBF on running time = 38 h / 1 (mean operating time between failures,
+    // IEC 60050-192, 192-05-13); on up time = (38 + 430) h / 1 = 468 h (≈ mean up time). MTTR = 3.5 h.
     expect(t.failures).toBe(1);
     expect(t.mtbfS! / HS).toBeCloseTo(38, 6);
+    expect(t.mtbfUpS! / HS).toBeCloseTo(468, 6);
     expect(t.mttrS! / HS).toBeCloseTo(3.5, 9);
     expect(t.longestOutage).toMatchObject({ start: oilTrip[0], end: oilTrip[1], cause: "Trip 210: Oil pressure low" });
     // The counters saw all 30 days (the machine ran while unseen): 30 starts, hour meter +60 h, against 38 h seen.
@@ -302,6 +306,12 @@ describe("a month with missing data, trips and planned service (June 2026, Europ
     expect(row.slice(0, 10)).toEqual(["compressor", "H-1 Main", "Harbour Station", "Europe/London", "720", "38", "430", "4", "8", "240"]);
     expect(reportCsv("outages", report).split("\r\n")[1]).toContain("2026-06-05 10:00,2026-06-05 13:30");
     expect(reportCsv("daily", report).split("\r\n")).toHaveLength(32); // header + 30 days + final newline
+    // Both MTBF bases, labelled by their column names; a day without data reads "no data".
+    const header = csv.split("\r\n")[0]!.split(",");
+    expect(row[header.indexOf("mtbf_running_h")]).toBe("38");
+    expect(row[header.indexOf("mtbf_up_h")]).toBe("468");
+    const daily = reportCsv("daily", report).split("\r\n");
+    expect(daily.find((l) => l.startsWith("2026-06-15,"))!.split(",").at(-1)).toBe("no data");
     for (const t of ["downtime", "alarm-load", "top-alarms", "stale-alarms"] as const) expect(reportCsv(t, report)).toMatch(/^\uFEFF\w/);
   });
 
@@ -313,9 +323,16 @@ describe("a month with missing data, trips and planned service (June 2026, Europ
     expect(june.failures).toBe(1);
     expect([c.months[8]!.hoursMin, c.months[8]!.hoursMax]).toEqual([743, 743]);
     expect(c.months[8]!.figures.availability).toBeCloseTo(1, 9);
-    expect(c.months[10]!.figures.availability).toBe(0); // May: no data at all
+    expect(c.months[10]!.figures.availability).toBeNull(); // May: no data at all — "no data", not 0 %
+    expect(c.months[10]!.figures.availabilityExPlanned).toBeNull();
     expect(c.months[10]!.split.noDataS / HS).toBe(744);
-    expect(comparisonCsv(c).split("\r\n")).toHaveLength(14);
+    const lines = comparisonCsv(c).split("\r\n");
+    expect(lines).toHaveLength(14);
+    const cols = lines[0]!.split(",");
+    const may = lines.find((l) => l.startsWith("2026-05,"))!.split(",");
+    expect(may[cols.indexOf("availability_pct")]).toBe("no data");
+    expect(may[cols.indexOf("availability_ex_planned_pct")]).toBe("no data");
+    expect(june.mtbfUpS! / HS).toBeCloseTo(468, 6);
   });
 });
 

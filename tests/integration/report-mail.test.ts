@@ -2,6 +2,8 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { openDatabase, type Db } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { buildMonthlyReportMail, dueMonthlyReports, reportRecipients } from "@/db/reports";
+import { clearHistoryBackfill, markHistoryBackfill } from "@/db/history-backfill";
+import { createReadingStore } from "@/db/readings";
 import { queueMonthlyReportMails, recipientKey } from "@/lib/reports/monthly-mail";
 import { SAFETY_NOTICE } from "@/shared/safety";
 
@@ -51,7 +53,13 @@ describe("which monthly reports are due", () => {
 describe("the e-mail", () => {
   it("states the period, the figures, the benchmarks, the links and the safety notice", () => {
     const mail = buildMonthlyReportMail(db, 1, "2026-03", { now: Date.UTC(2026, 3, 1, 2), baseUrl: "https://airkeep.example.test/" })!;
-    expect(mail.subject).toBe("Airkeep monthly report, March 2026 — Kiwi Dive: availability 0.00 %");
+    // Nothing was recorded at Kiwi Dive in March: the mail says so instead of claiming 0.00 % availability.
+    expect(mail.subject).toBe("Airkeep monthly report, March 2026 — Kiwi Dive: no data recorded this month");
+    expect(mail.text).toContain("No readings and no planned service were recorded at this site in this period");
+    expect(mail.text).toContain("Availability (planned service counted as down): no data");
+    expect(mail.text).toContain("K-1: availability no data,");
+    expect(mail.text).not.toContain("0.00 %");
+    expect(mail.html).not.toContain("0.00 %");
     expect(mail.text).toContain("Period: March 2026 in Pacific/Auckland: 2026-03-01 00:00 to 2026-04-01 00:00 local time, 744 h");
     expect(mail.text).toContain("No data (offline): 744.0 h");
     expect(mail.text).toContain("Down: planned service: 0.0 h — No planned service recorded.");
@@ -62,6 +70,35 @@ describe("the e-mail", () => {
     expect(mail.html).toContain("Kiwi Dive");
     expect(mail.html).not.toContain("<script");
     expect(buildMonthlyReportMail(db, 99, "2026-03")).toBeNull();
+  });
+
+  it("with some data, gives the availability; a compressor without data reads \"no data\"", () => {
+    // Coast Station (Los Angeles, March 2026 = 743 h): C-1 in standby for the first 10 h (a reading a minute,
+    // written through the reading store), nothing after. Availability = 10 h / 743 h (a lower bound: the rest has no data).
+    const start = Date.UTC(2026, 2, 1, 8); // 1 March 00:00 PST
+    const rows = Array.from({ length: 601 }, (_, i) => ({
+      compressorId: 2, ts: start + i * 60_000, seq: i + 1, deliveryBar: 280, stage1Bar: null, stage2Bar: null, stage3Bar: null, stage4Bar: null,
+      stage1C: 20, stage2C: 20, stage3C: 20, stage4C: null, oilBar: 0, purifierC: 15, intakeC: 15, runState: 1, motorOn: 0, hourMeterH: 100, starts: 5, tripCode: null,
+    }));
+    createReadingStore(db).insert(rows, { keepRaw: false });
+    const mail = buildMonthlyReportMail(db, 2, "2026-03", { now: Date.UTC(2026, 3, 1, 10) })!;
+    expect(mail.subject).toBe(`Airkeep monthly report, March 2026 — Coast Station: availability ${((10 / 743) * 100).toFixed(2)} %`);
+    expect(mail.text).not.toContain("No readings and no planned service");
+  });
+
+  it("waits while history is still being written (the demo's backfill), then queues", () => {
+    const at = Date.UTC(2026, 3, 1, 10);
+    markHistoryBackfill(db, 4242, at - 60_000);
+    expect(queueMonthlyReportMails(db, at, { from: "Airkeep <reports@airkeep.example.test>", alive: (pid) => pid === 4242 })).toEqual({
+      reports: 0,
+      queued: 0,
+      deferred: "history-backfill",
+    });
+    expect(db.$client.prepare("SELECT COUNT(*) AS n FROM mail_outbox").get()).toEqual({ n: 0 });
+    // A mark left by a process that died does not hold the reports back for ever.
+    expect(queueMonthlyReportMails(db, at, { from: "x@airkeep.example.test", alive: () => false })).toEqual({ reports: 2, queued: 3 });
+    db.$client.prepare("DELETE FROM mail_outbox").run();
+    clearHistoryBackfill(db);
   });
 
   it("queues one message per manager, once", () => {

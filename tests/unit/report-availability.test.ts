@@ -14,6 +14,7 @@ import {
   scopeParam,
   splitTime,
   type StateEvent,
+  formatAvailability,
 } from "@/shared/availability";
 
 const H = 3600;
@@ -83,6 +84,13 @@ describe("the five states of a period (cases constructed and computed by hand)",
 
   it("an empty period has no availability", () => {
     expect(availabilityOf(splitTime(0, { coveredS: 0, runS: 0, trippedS: 0 })).availability).toBeNull();
+    // A whole month without a reading or planned service: "no data", never 0 %.
+    const dark = availabilityOf(splitTime(744 * 3600, { coveredS: 0, runS: 0, trippedS: 0 }));
+    expect(dark.availability).toBeNull();
+    expect(dark.availabilityExPlanned).toBeNull();
+    expect(formatAvailability(dark.availability)).toBe("no data");
+    // One hour of standby in the month is data: a (lower-bound) availability of 1/744.
+    expect(availabilityOf(splitTime(744 * 3600, { coveredS: 3600, runS: 0, trippedS: 0 })).availability).toBeCloseTo(1 / 744, 12);
   });
 });
 
