@@ -270,7 +270,7 @@ export function DataTable<T>(props: DataTableProps<T>) {
 
 function SortMark({ direction }: { direction: SortDirection | null }) {
   return (
-    <span aria-hidden="true" className={`text-xs ${direction ? "text-ink" : "text-faint"}`}>
+    <span aria-hidden="true" className={`text-xs ${direction ? "text-ink" : "text-muted"}`}>
       {direction === "asc" ? "▲" : direction === "desc" ? "▼" : "↕"}
     </span>
   );

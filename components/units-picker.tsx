@@ -2,7 +2,7 @@
 
 import { useRouter } from "next/navigation";
 import { useState, useTransition } from "react";
-import { saveUnitPreference } from "@/app/(app)/actions";
+import { saveUnitPreference } from "@/lib/actions/preferences";
 import { pressureUnits, temperatureLabel, temperatureUnits, type UnitPreference } from "@/shared/units";
 
 export function UnitsPicker({ units }: { units: UnitPreference }) {

@@ -1,5 +1,6 @@
 import { createHash, randomBytes } from "node:crypto";
 import { desc, eq, inArray } from "drizzle-orm";
+import type { DisplayLinkDto } from "@/shared/display-link-schema";
 import { writeAudit } from "./audit";
 import type { Db } from "./client";
 import type { Theme } from "@/shared/palette";
@@ -8,18 +9,6 @@ import { displayLinks, sites, users } from "./schema";
 
 // Display links: a wall screen opens /display/<token>. The token is shown once to the administrator who made it;
 // only its SHA-256 hash is stored, so a copy of the database does not open any screen.
-
-export type DisplayLinkDto = {
-  id: number;
-  label: string;
-  /** null: every site. */
-  siteIds: number[] | null;
-  siteNames: string[] | null;
-  createdByName: string;
-  createdAt: number;
-  revokedAt: number | null;
-  lastUsedAt: number | null;
-};
 
 export type DisplayLinkActor = { userId: number; email: string; ip?: string };
 

@@ -1,5 +1,6 @@
 import type Database from "better-sqlite3";
 import type { Priority } from "@/shared/alarm-rules";
+import type { EventDto } from "@/shared/event-schema";
 import type { Role } from "@/shared/roles";
 import type { Db } from "./client";
 
@@ -51,22 +52,6 @@ export type EventFilter = {
 };
 
 export type EventCursor = { ts: number; id: number };
-
-export type EventDto = {
-  id: number;
-  ts: number;
-  kind: string;
-  action: string;
-  priority: Priority | null;
-  siteId: number | null;
-  siteName: string | null;
-  timeZone: string | null;
-  compressorId: number | null;
-  compressorName: string | null;
-  alarmId: number | null;
-  actor: string;
-  text: string;
-};
 
 export type EventPage = {
   events: EventDto[];

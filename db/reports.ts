@@ -20,7 +20,6 @@ import {
   availabilityOf,
   clipIntervals,
   hasData,
-  mergeIntervals,
   mtbfSeconds,
   mtbfBasis,
   mttrSeconds,

@@ -9,8 +9,8 @@ import {
   type TrendSignal,
   type TrendSource,
   type TrendSpan,
+  type DeviceEventDto,
 } from "@/shared/board";
-import type { RunState } from "@/shared/telemetry";
 import type { Db } from "./client";
 
 // Trend reads: aggregated in SQL to at most ~1000 buckets and returned as arrays (.raw()), so a year of
@@ -74,16 +74,6 @@ export function readTrend(db: Db, compressorId: number, signal: TrendSignal, spa
   const points: TrendPoint[] = rows.map((r) => [Number(r[0]), num(r[1]), num(r[2]), num(r[3])]);
   return { compressorId, signal, span, source, bucketMs, from, to, points: breakGaps(points, bucketMs) };
 }
-
-export type DeviceEventDto = {
-  id: number;
-  ts: number;
-  kind: "comms_lost" | "comms_restored" | "state" | "trip";
-  runState: RunState | null;
-  tripCode: number | null;
-  text: string;
-  receivedAt: number;
-};
 
 const eventStatements = new WeakMap<Db, Statement<[{ id: number; before: number; limit: number }], DeviceEventDto>>();
 

@@ -1,6 +1,6 @@
 /**
  * Condition alarms: alarms about a state of affairs rather than a reading (a service task overdue, an air test failed),
- * raised and cleared through lib/alarms/conditions.ts along the same ISA-18.2 lifecycle as limit alarms. Their key is
+ * raised and cleared through db/alarm-conditions.ts along the same ISA-18.2 lifecycle as limit alarms. Their key is
  * "cond:<family>:<subject>"; each family names its title here, where screens, e-mails and the event log read it.
  */
 import { AIR_ALARM_FAMILY, airAlarmTitles, isAirAlarmKind } from "./air-quality-alarms";

@@ -93,8 +93,14 @@ export function floodEpisodes(times: readonly number[], from: number, to: number
     const t = Math.min(arrive, leave);
     if (t >= to) break;
     // Everything at this instant first, then judge the rate.
-    while (j < i && times[j]! + TEN_MINUTES_MS === t) (j++, inWindow--);
-    while (i < times.length && times[i] === t) (i++, inWindow++);
+    while (j < i && times[j]! + TEN_MINUTES_MS === t) {
+      j++;
+      inWindow--;
+    }
+    while (i < times.length && times[i] === t) {
+      i++;
+      inWindow++;
+    }
     if (start === null && inWindow > above) start = t;
     else if (start !== null && inWindow < below) {
       if (t > from) out.push({ start: Math.max(start, from), end: t });

@@ -58,3 +58,12 @@ export type OutOfServiceInput = z.infer<typeof outOfServiceSchema>;
 
 export const returnToServiceSchema = z.object({ id: z.number().int().positive(), comment });
 export type ReturnToServiceInput = z.infer<typeof returnToServiceSchema>;
+
+/** Active alarms of one compressor by priority. */
+export type AlarmCounts = Record<Priority, number>;
+
+/** GET /api/alarms */
+export type AlarmsResponse = { alarms: AlarmDto[]; at: number };
+
+/** GET /api/alarms/counts: per compressor id. */
+export type AlarmCountsResponse = { counts: Record<string, AlarmCounts>; at: number };

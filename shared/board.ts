@@ -347,3 +347,14 @@ export type CompressorDetail = {
 
 /** Path parameter of a compressor: a positive integer id. */
 export const compressorIdSchema = z.coerce.number().int().positive();
+
+/** One entry of a compressor's device history (GET /api/compressors/:id/events). */
+export type DeviceEventDto = {
+  id: number;
+  ts: number;
+  kind: "comms_lost" | "comms_restored" | "state" | "trip";
+  runState: RunState | null;
+  tripCode: number | null;
+  text: string;
+  receivedAt: number;
+};

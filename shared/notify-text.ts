@@ -3,7 +3,7 @@ import { signalInfo, type AlarmSignal, type Priority } from "./alarm-rules";
 import { parseLimitKey } from "./alarm-text";
 import { airAlarmCautions, airAlarmKindOf } from "./air-quality-alarms";
 import { cautions, SAFETY_NOTICE } from "./safety";
-import { tripCodeInfo, tripCodeLabel } from "./trip-codes";
+import { tripCodeInfo } from "./trip-codes";
 import { formatPressure, formatTemperature, type UnitPreference } from "./units";
 
 // The words of Airkeep's alarm e-mails: subject, plain text and a simple HTML part. Pure; the notifier supplies the

@@ -7,9 +7,10 @@ export const palettes = {
     line: "#b9bdc3",
     ink: "#1b1e22",
     muted: "#555b63",
+    // Lines and fills only, never text: no grey lighter than `muted` reaches 4.5 : 1 on `canvas`.
     faint: "#7b828b",
     normal: "#3d434a",
-    critical: "#c0161c",
+    critical: "#bd161c",
     "critical-soft": "#f6d5d6",
     "critical-ink": "#ffffff",
     warning: "#e3a008",

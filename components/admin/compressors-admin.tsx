@@ -2,8 +2,8 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useEffect, useId, useRef, useState } from "react";
-import { createCompressor, issueDeviceCredential, updateCompressor } from "@/app/(app)/admin/compressors/actions";
-import type { DeviceCredential } from "@/app/(app)/admin/compressors/credential";
+import { createCompressor, issueDeviceCredential, updateCompressor } from "@/lib/actions/admin-compressors";
+import type { DeviceCredential } from "@/lib/broker/device-credential";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import {
@@ -269,7 +269,7 @@ function CompressorForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-3"

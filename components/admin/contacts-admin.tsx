@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { createContact, deleteContact, sendTestMail, updateContact } from "@/app/(app)/admin/contacts/actions";
+import { createContact, deleteContact, sendTestMail, updateContact } from "@/lib/actions/admin-contacts";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { mailQueries, type ContactsPageData } from "@/components/queries/mail";
 import { contactInputSchema, contactUpdateSchema, type ContactDto } from "@/shared/contact-schema";
@@ -85,7 +85,7 @@ function ContactsSection({ data, loading }: { data: ContactsPageData | undefined
   const columns: DataColumn<ContactDto>[] = [
     { id: "name", header: "Name", sortValue: (c) => c.name, cell: (c) => <span className="font-semibold">{c.name}</span> },
     { id: "email", header: "E-mail", sortValue: (c) => c.email, cell: (c) => <span className="num">{c.email}</span> },
-    { id: "account", header: "Account", sortValue: (c) => c.userName ?? "", cell: (c) => c.userName ?? <span className="text-faint">—</span> },
+    { id: "account", header: "Account", sortValue: (c) => c.userName ?? "", cell: (c) => c.userName ?? <span className="text-muted">—</span> },
     {
       id: "active",
       header: "Receives mail",
@@ -215,7 +215,7 @@ function ContactForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-2"

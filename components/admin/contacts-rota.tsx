@@ -1,7 +1,7 @@
 "use client";
 
 import { useState } from "react";
-import { createRotaEntry, deleteRotaEntry, updateRotaEntry } from "@/app/(app)/admin/contacts/actions";
+import { createRotaEntry, deleteRotaEntry, updateRotaEntry } from "@/lib/actions/admin-contacts";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import type { ContactsPageData } from "@/components/queries/mail";
 import { rotaEntryInputSchema, rotaEntryUpdateSchema, type RotaEntryDto } from "@/shared/contact-schema";
@@ -155,7 +155,7 @@ function RotaForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-3"

@@ -1,7 +1,7 @@
 "use client";
 
 import { useState } from "react";
-import { createRule, deleteRule, updateRule } from "@/app/(app)/admin/contacts/actions";
+import { createRule, deleteRule, updateRule } from "@/lib/actions/admin-contacts";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import type { ContactsPageData } from "@/components/queries/mail";
 import { priorities, type Priority } from "@/shared/alarm-rules";
@@ -162,7 +162,6 @@ function ChainPreview({ data }: { data: ContactsPageData }) {
     defaultEscalateAfterMs: data.defaultEscalateAfterMin * 60_000,
   });
   const name = (id: number) => data.contacts.find((c) => c.id === id)?.name ?? `Contact ${id}`;
-  let elapsed = 0;
   return (
     <div className="rounded border border-line bg-panel p-3 text-sm" data-testid="chain-preview">
       <div className="flex flex-wrap items-end gap-3">
@@ -192,8 +191,7 @@ function ChainPreview({ data }: { data: ContactsPageData }) {
       ) : (
         <ol className="mt-2 list-decimal space-y-0.5 pl-5">
           {routing.chain.map((r, i) => {
-            const at = elapsed;
-            elapsed += r.escalateAfterMs / 60_000;
+            const at = routing.chain.slice(0, i).reduce((sum, s) => sum + s.escalateAfterMs / 60_000, 0);
             return (
               <li key={r.contactId}>
                 {name(r.contactId)}{" "}
@@ -251,7 +249,7 @@ function RuleForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-3"

@@ -1,6 +1,6 @@
 "use client";
 
-import { useEffect, useId, useRef, useState, type ReactNode, type RefObject } from "react";
+import { useEffect, useId, useRef, useState, type ReactNode } from "react";
 import { z } from "zod";
 import type { ActionResult } from "@/lib/api/action";
 
@@ -32,7 +32,6 @@ export type FormApi<V extends Values> = {
   fieldId: (name: keyof V & string) => string;
   formError: string | null;
   pending: boolean;
-  formRef: RefObject<HTMLFormElement | null>;
   /** Validates, calls the action, and returns its data, or null after showing the errors. */
   submit: <T>(action: (input: unknown) => Promise<ActionResult<T>>) => Promise<T | null>;
   reset: (values: V) => void;
@@ -48,7 +47,6 @@ export function useSchemaForm<V extends Values>(options: {
 }): FormApi<V> {
   const { schema, toInput = (v: V) => v, check } = options;
   const id = useId();
-  const formRef = useRef<HTMLFormElement>(null);
   const [values, setValues] = useState<V>(options.initial);
   const [touched, setTouched] = useState<ReadonlySet<string>>(new Set());
   const [submitted, setSubmitted] = useState(false);
@@ -62,9 +60,10 @@ export function useSchemaForm<V extends Values>(options: {
 
   useEffect(() => {
     if (!focusTick) return;
-    const first = formRef.current?.querySelector<HTMLElement>('[aria-invalid="true"]');
+    // The form carries id={form.id}; a ref handed out in the form object would make the whole object a ref to React's rules.
+    const first = document.getElementById(id)?.querySelector<HTMLElement>('[aria-invalid="true"]');
     first?.focus();
-  }, [focusTick]);
+  }, [focusTick, id]);
 
   const errorOf = (name: string) =>
     serverErrors[name]?.[0] ?? (submitted || touched.has(name) ? clientErrors[name]?.[0] : undefined);
@@ -85,7 +84,6 @@ export function useSchemaForm<V extends Values>(options: {
     fieldId: (name) => `${id}-${name}`,
     formError,
     pending,
-    formRef,
     async submit<T>(action: (input: unknown) => Promise<ActionResult<T>>) {
       setSubmitted(true);
       const problems = Object.values(clientErrors).some((v) => v?.length);
@@ -205,7 +203,7 @@ export function TextField<V extends Values>({
         )}
       </div>
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}
@@ -252,7 +250,7 @@ export function SelectField<V extends Values>({
         ))}
       </select>
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}
@@ -281,7 +279,7 @@ export function CheckboxField<V extends Values>({ form, name, label, hint, class
         {label}
       </label>
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}
@@ -336,7 +334,7 @@ export function CheckboxGroupField<V extends Values>({
         </div>
       )}
       {hint && (
-        <p id={`${id}-hint`} className="mt-0.5 text-xs text-faint">
+        <p id={`${id}-hint`} className="mt-0.5 text-xs text-muted">
           {hint}
         </p>
       )}

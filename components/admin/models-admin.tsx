@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { createCompressorModel, updateCompressorModel } from "@/app/(app)/admin/models/actions";
+import { createCompressorModel, updateCompressorModel } from "@/lib/actions/admin-models";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import { FREE_AIR_BASIS, FREE_AIR_BASIS_SHORT } from "@/shared/air";
@@ -29,7 +29,7 @@ export function ModelsAdmin() {
 
   const columns: DataColumn<CompressorModelDto>[] = [
     { id: "name", header: "Name", sortValue: (m) => m.name, cell: (m) => m.name },
-    { id: "maker", header: "Maker", sortValue: (m) => m.maker, cell: (m) => m.maker || <span className="text-faint">—</span> },
+    { id: "maker", header: "Maker", sortValue: (m) => m.maker, cell: (m) => m.maker || <span className="text-muted">—</span> },
     { id: "stages", header: "Stages", numeric: true, sortValue: (m) => m.stages, cell: (m) => m.stages },
     {
       id: "delivery",
@@ -137,7 +137,7 @@ function ModelForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-3"

@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { createSite, updateSite } from "@/app/(app)/admin/sites/actions";
+import { createSite, updateSite } from "@/lib/actions/admin-sites";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import { siteInputSchema, siteUpdateSchema, type SiteDto } from "@/shared/site-schema";
@@ -25,7 +25,7 @@ export function SitesAdmin({ timeZones }: { timeZones: string[] }) {
     { id: "name", header: "Name", sortValue: (s) => s.name, cell: (s) => s.name },
     { id: "code", header: "Code", sortValue: (s) => s.code, cell: (s) => <span className="num">{s.code}</span> },
     { id: "timeZone", header: "Time zone", sortValue: (s) => s.timeZone, cell: (s) => s.timeZone },
-    { id: "address", header: "Address", sortValue: (s) => s.address, cell: (s) => s.address || <span className="text-faint">—</span> },
+    { id: "address", header: "Address", sortValue: (s) => s.address, cell: (s) => s.address || <span className="text-muted">—</span> },
     {
       id: "compressors",
       header: "Compressors",
@@ -140,7 +140,7 @@ function SiteForm({
   return (
     <FormPanel title={title}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={title}
         className="grid gap-3 md:grid-cols-2"

@@ -2,7 +2,7 @@
 
 import { useQuery } from "@tanstack/react-query";
 import { useState } from "react";
-import { inviteUser, updateUser } from "@/app/(app)/admin/users/actions";
+import { inviteUser, updateUser } from "@/lib/actions/admin-users";
 import { DataTable, type DataColumn } from "@/components/data-table";
 import { adminQueries } from "@/components/queries/admin";
 import { roleLabels, roles, type Role } from "@/shared/roles";
@@ -268,7 +268,7 @@ function InviteUserForm({
   return (
     <FormPanel title="Invite a user">
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label="Invite a user"
         className="grid gap-3 md:grid-cols-2"
@@ -338,7 +338,7 @@ function EditUserForm({
   return (
     <FormPanel title={`Access of ${user.email}`}>
       <form
-        ref={form.formRef}
+        id={form.id}
         noValidate
         aria-label={`Access of ${user.email}`}
         className="grid gap-3 md:grid-cols-2"

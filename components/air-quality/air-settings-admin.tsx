@@ -24,7 +24,7 @@ function SettingsLine<V extends Record<string, unknown>>({ form, action, childre
   const [saved, setSaved] = useState(false);
   return (
     <form
-      ref={form.formRef}
+      id={form.id}
       noValidate
       className="flex flex-wrap items-end gap-3"
       onSubmit={async (e) => {

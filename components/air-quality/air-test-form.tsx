@@ -3,7 +3,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
-import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
+import { utcToZonedLocal, zonedLocalToUtc } from "@/shared/zoned-time";
 import { FileField, LocalDateTimeField, SubmitRow, useFollowZone } from "./form-parts";
 import { postRecord } from "./post-record";
 import type { AirTestVerdict } from "@/shared/air-standards";
@@ -81,7 +81,7 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
   useFollowZone(form, "sampledAt", unit?.timeZone);
   return (
     <form
-      ref={form.formRef}
+      id={form.id}
       noValidate
       aria-labelledby={`${form.id}-h`}
       className="space-y-3 rounded border border-line bg-raised p-4"

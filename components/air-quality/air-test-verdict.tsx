@@ -1,6 +1,6 @@
 import type { AirTestDto } from "@/shared/air-quality-schema";
 import { airStandardLabels, analyteLabels } from "@/shared/air-standards";
-import { formatZoned } from "@/components/events/zoned-time";
+import { formatZoned } from "@/shared/zoned-time";
 import { PriorityMark } from "@/components/alarms/priority-mark";
 
 const resultWord = { pass: "Pass", fail: "Fail", "no-limit": "No limit", missing: "Not measured" } as const;

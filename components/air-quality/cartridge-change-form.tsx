@@ -3,7 +3,7 @@
 import { useRouter } from "next/navigation";
 import { useState } from "react";
 import { SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
-import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
+import { utcToZonedLocal, zonedLocalToUtc } from "@/shared/zoned-time";
 import { FileField, LocalDateTimeField, SubmitRow, useFollowZone } from "./form-parts";
 import { postRecord } from "./post-record";
 import { cartridgeChangeInputSchema } from "@/shared/air-quality-schema";
@@ -33,7 +33,7 @@ export function CartridgeChangeForm({ units }: { units: UnitChoice[] }) {
   useFollowZone(form, "changedAt", unitOf(form.values)?.timeZone);
   return (
     <form
-      ref={form.formRef}
+      id={form.id}
       noValidate
       aria-labelledby={`${form.id}-h`}
       className="space-y-3 rounded border border-line bg-raised p-4"

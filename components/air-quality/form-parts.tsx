@@ -2,7 +2,7 @@
 
 import { useEffect, useRef } from "react";
 import type { FormApi } from "@/components/admin/form-kit";
-import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
+import { utcToZonedLocal, zonedLocalToUtc } from "@/shared/zoned-time";
 import { attachmentAccept } from "@/shared/attachment-schema";
 
 type Values = Record<string, unknown>;

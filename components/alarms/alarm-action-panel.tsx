@@ -8,7 +8,7 @@ import {
   returnToServiceAction,
   shelveAlarmsAction,
   type AlarmActionOutcome,
-} from "@/app/(app)/alarms/actions";
+} from "@/lib/actions/alarms";
 import type { ActionResult } from "@/lib/api/action";
 import { acknowledgeSchema, MAX_SHELVE_MINUTES, outOfServiceSchema, returnToServiceSchema, shelveSchema } from "@/shared/alarm-schema";
 import { formatDuration } from "@/shared/alarm-text";
@@ -114,7 +114,7 @@ export function AlarmActionPanel({
 
   return (
     <FormPanel title={c.title(ids.length)}>
-      <form ref={form.formRef} onSubmit={submit} noValidate className="space-y-2" data-testid="alarm-action-form" data-action={kind}>
+      <form id={form.id} onSubmit={submit} noValidate className="space-y-2" data-testid="alarm-action-form" data-action={kind}>
         <ul className="max-h-32 list-disc overflow-y-auto pl-5 text-sm">
           {names.map((n, i) => (
             <li key={i}>{n}</li>
@@ -157,7 +157,7 @@ export function AlarmActionPanel({
               ))}
             </div>
           )}
-          <p id={hintId} className="text-xs text-faint">
+          <p id={hintId} className="text-xs text-muted">
             {c.commentRequired ? "Required. " : ""}It is kept with the alarm and in the event log.
           </p>
           <FieldError id={`${commentId}-error`} message={commentError} />

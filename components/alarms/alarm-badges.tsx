@@ -1,7 +1,6 @@
 import { priorities, type Priority } from "@/shared/alarm-rules";
+import type { AlarmCounts } from "@/shared/alarm-schema";
 import { priorityWords } from "./priority-mark";
-
-export type AlarmCounts = Record<Priority, number>;
 
 const badgeClass: Record<Priority, string> = {
   critical: "border-critical bg-critical text-critical-ink",

@@ -4,7 +4,7 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import Link from "next/link";
 import { usePathname } from "next/navigation";
 import { useEffect, useId, useMemo, useRef, useState } from "react";
-import type { AlarmActionOutcome } from "@/app/(app)/alarms/actions";
+import type { AlarmActionOutcome } from "@/lib/actions/alarms";
 import { alarmStates, stateLabels, type AlarmState } from "@/shared/alarm-lifecycle";
 import { priorities, priorityRank, type Priority } from "@/shared/alarm-rules";
 import type { AlarmDto } from "@/shared/alarm-schema";
@@ -12,7 +12,7 @@ import { can, denialReason, type Permission, type Role } from "@/shared/roles";
 import type { UnitPreference } from "@/shared/units";
 import { buttonClass, StatusLine } from "../admin/form-kit";
 import { DataTable, type DataColumn } from "../data-table";
-import { formatZoned, offsetLabel } from "../events/zoned-time";
+import { formatZoned, offsetLabel } from "@/shared/zoned-time";
 import { noteServerTime, useServerNow } from "../live/server-clock";
 import { alarmQueries, alarmsKey, applyAlarmUpdates } from "../queries/alarms";
 import { useUnits } from "../use-units";
@@ -20,7 +20,7 @@ import { cautionsFor } from "@/shared/notify-text";
 import { AlarmActionPanel } from "./alarm-action-panel";
 import { AlarmMiniTrend } from "./alarm-mini-trend";
 import { actionApplies, formatAlarmAge, valueVsLimit, type AlarmActionKind } from "./format";
-import { alarmListQuery, type AlarmListParams } from "./list-params";
+import { alarmListQuery, type AlarmListParams } from "@/shared/alarm-list-params";
 import { PriorityMark, priorityWords } from "./priority-mark";
 import { FilterSelect } from "@/components/filter-select";
 
@@ -84,7 +84,7 @@ function ActionButtons({
   onAction: (kind: AlarmActionKind, alarms: AlarmDto[]) => void;
 }) {
   const kinds = (["acknowledge", "shelve", "out-of-service", "return-to-service"] as const).filter((k) => actionApplies(k, a.state));
-  if (!kinds.length) return <span className="text-xs text-faint">—</span>;
+  if (!kinds.length) return <span className="text-xs text-muted">—</span>;
   return (
     <div className="flex flex-wrap gap-1">
       {kinds.map((k) => {
@@ -144,7 +144,7 @@ export function AlarmList({
   useEffect(() => {
     if (list.data) noteServerTime(list.data.at);
   }, [list.data]);
-  const now = useServerNow(list.data?.at ?? Date.now());
+  const now = useServerNow(list.data?.at ?? 0);
 
   const all = useMemo(() => list.data?.alarms ?? [], [list.data]);
   const shown = useMemo(

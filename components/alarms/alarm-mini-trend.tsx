@@ -5,7 +5,7 @@ import { Line, LineChart, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YA
 import { trendSignalSchema } from "@/shared/board";
 import type { AlarmDto } from "@/shared/alarm-schema";
 import { pressureFromBar, pressureLabel, temperatureFromC, temperatureLabel } from "@/shared/units";
-import { formatZoned } from "../events/zoned-time";
+import { formatZoned } from "@/shared/zoned-time";
 import { trendQueries } from "../queries/trends";
 import { useUnits } from "../use-units";
 

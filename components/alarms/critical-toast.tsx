@@ -43,6 +43,8 @@ export function CriticalToast() {
     if (!unannounced.length) return;
     for (const a of unannounced) seen.add(a.id);
     writeSeen(seen);
+    // Announced ids live in sessionStorage (outside React), so the toast list follows it from an effect.
+    // eslint-disable-next-line react-hooks/set-state-in-effect
     setFresh((old) => [...unannounced, ...old.filter((o) => !unannounced.some((u) => u.id === o.id))].slice(0, 5));
   }, [data]);
 

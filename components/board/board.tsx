@@ -8,7 +8,7 @@ import type { Theme } from "@/shared/palette";
 import type { UnitPreference } from "@/shared/units";
 import { useServerNow } from "../live/server-clock";
 import { liveStatusText, useLive, type LiveState } from "../live/use-live";
-import type { AlarmCounts } from "../alarms/alarm-badges";
+import type { AlarmCounts } from "@/shared/alarm-schema";
 import { alarmQueries } from "../queries/alarms";
 import { applyLiveMessage, HttpError, liveQueries, liveTokenUrl, type BoardSource } from "../queries/live";
 import { useUnits } from "../use-units";
@@ -144,9 +144,7 @@ export function Board({ source, title, theme: linkTheme }: { source: BoardSource
   const refusedStatus = board.error instanceof HttpError ? board.error.status : live.status === "refused" ? live.refusal : null;
   const linkGone = kiosk && (refusedStatus === 410 || refusedStatus === 404);
   // A revoked wall screen drops its socket and stops polling: it shows the revoked page and nothing else.
-  useEffect(() => {
-    if (linkGone) setRevoked(true);
-  }, [linkGone]);
+  if (linkGone && !revoked) setRevoked(true);
   // On a wall (the kiosk, or the board in full screen) everything fits one screen, stays awake and shows the notice.
   const wall = kiosk || fullscreen.active;
   const wakeLock = useWakeLock(wall);
@@ -224,6 +222,8 @@ function useBoardTheme(fixed: Theme | undefined): [Theme, (t: Theme) => void] {
   useEffect(() => {
     if (fixed) return;
     const saved = window.localStorage.getItem(THEME_KEY);
+    // Browser-only value, read after hydration so the server's HTML and the first client render agree.
+    // eslint-disable-next-line react-hooks/set-state-in-effect
     if (saved === "dark" || saved === "light") setChosen(saved);
   }, [fixed]);
   const set = useCallback((t: Theme) => {
@@ -239,6 +239,8 @@ function useFullscreen(ref: RefObject<HTMLElement | null>) {
   const [active, setActive] = useState(false);
   const [supported, setSupported] = useState(false);
   useEffect(() => {
+    // Browser-only value, read after hydration so the server's HTML and the first client render agree.
+    // eslint-disable-next-line react-hooks/set-state-in-effect
     setSupported(document.fullscreenEnabled === true);
     const onChange = () => setActive(document.fullscreenElement !== null && document.fullscreenElement === ref.current);
     document.addEventListener("fullscreenchange", onChange);

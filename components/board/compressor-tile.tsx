@@ -11,7 +11,8 @@ import {
 } from "@/shared/board";
 import { tripCodeLabel } from "@/shared/trip-codes";
 import { pressureFromBar, pressureLabel, type UnitPreference } from "@/shared/units";
-import { AlarmBadges, type AlarmCounts } from "../alarms/alarm-badges";
+import { AlarmBadges } from "../alarms/alarm-badges";
+import type { AlarmCounts } from "@/shared/alarm-schema";
 import { ServiceBadge } from "../service/service-badge";
 import { Band } from "./band";
 import { pressureParts, pressureShort, temperatureParts, type Quantity } from "./format";
@@ -33,7 +34,7 @@ function Figure({ label, q, current, testId }: { label: string; q: Quantity; cur
   return (
     <div className="min-w-0">
       <dt className="truncate text-[0.75em] text-muted">{label}</dt>
-      <dd className={`num whitespace-nowrap ${current ? "text-ink" : "text-faint"}`}>
+      <dd className={`num whitespace-nowrap ${current ? "text-ink" : "text-muted"}`}>
         <span className="inline-block min-w-[4ch] text-right text-[1.35em] font-bold" data-testid={testId}>
           {q.value}
         </span>
@@ -123,7 +124,7 @@ export const CompressorTile = memo(function CompressorTile({
       <div>
         <div className="flex items-baseline justify-between gap-[0.5em]">
           <span className="text-[0.8em] text-muted">Delivery</span>
-          <span className={`num whitespace-nowrap ${current ? "text-ink" : "text-faint"}`}>
+          <span className={`num whitespace-nowrap ${current ? "text-ink" : "text-muted"}`}>
             <span className="inline-block min-w-[6ch] text-right text-[2.2em] font-bold leading-none" data-testid="delivery-value">
               {delivery.value}
             </span>

@@ -10,6 +10,8 @@ export function useWakeLock(active: boolean): WakeLockState {
   useEffect(() => {
     if (!active) return;
     if (!("wakeLock" in navigator)) {
+      // Browser-only fact, known after hydration so the server's HTML and the first client render agree.
+      // eslint-disable-next-line react-hooks/set-state-in-effect
       setState("unsupported");
       return;
     }

@@ -51,7 +51,7 @@ function Reading({
     <div className="rounded border border-line bg-raised p-3" data-testid={`${testId}-reading`}>
       <div className="flex items-baseline justify-between gap-2">
         <h3 className="text-sm font-semibold text-muted">{label}</h3>
-        <span className={`num whitespace-nowrap ${current ? "text-ink" : "text-faint"}`}>
+        <span className={`num whitespace-nowrap ${current ? "text-ink" : "text-muted"}`}>
           <span className="inline-block min-w-[6ch] text-right text-2xl font-bold" data-testid={testId}>
             {q.value}
           </span>

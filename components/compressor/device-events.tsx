@@ -1,7 +1,7 @@
 "use client";
 
 import { useQuery } from "@tanstack/react-query";
-import type { DeviceEventDto } from "@/db/trends";
+import type { DeviceEventDto } from "@/shared/board";
 import { tripCodeLabel } from "@/shared/trip-codes";
 import { siteDateTime } from "../board/format";
 import { trendQueries } from "../queries/trends";

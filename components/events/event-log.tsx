@@ -8,7 +8,7 @@ import { priorities, type Priority } from "@/shared/alarm-rules";
 import { buttonClass } from "../admin/form-kit";
 import { PriorityMark, priorityWords } from "../alarms/priority-mark";
 import { eventQueries, eventsCsvUrl } from "../queries/events";
-import { eventKindLabel, eventKinds, eventKindLabels, type EventKind } from "./kinds";
+import { eventKindLabel, eventKinds, eventKindLabels, type EventKind } from "@/shared/event-kinds";
 import {
   effectiveZone,
   eventFilterQuery,
@@ -16,8 +16,8 @@ import {
   type EventCursorParam,
   type EventFilterParams,
   type ZoneSite,
-} from "./search-params";
-import { formatZoned, isoWithOffset, offsetLabel } from "./zoned-time";
+} from "@/shared/event-schema";
+import { formatZoned, isoWithOffset, offsetLabel } from "@/shared/zoned-time";
 import { FilterSelect } from "@/components/filter-select";
 
 export type EventCompressorOption = { id: number; name: string; siteId: number };
@@ -54,6 +54,7 @@ export function EventLog({
   const [draft, setDraft] = useState<Draft>(draftOf(initial));
   // Keyset positions of the pages visited: [null] is the newest page.
   const [stack, setStack] = useState<(EventCursorParam | null)[]>([null]);
+  const [openedAt] = useState(() => Date.now());
   const after = stack[stack.length - 1] ?? null;
   const page = useQuery(eventQueries.page(applied, after));
 
@@ -107,7 +108,7 @@ export function EventLog({
               className={`${field} w-full`}
               maxLength={200}
             />
-            <p id={`${ids}-q-hint`} className="text-xs text-faint">
+            <p id={`${ids}-q-hint`} className="text-xs text-muted">
               Every word must appear; the last may be the start of a word.
             </p>
           </div>
@@ -192,7 +193,7 @@ export function EventLog({
         <p id={`${ids}-zone-note`} className="text-xs text-muted" data-testid="event-zone">
           Times are entered and shown in <strong className="text-ink">{zone}</strong>
           {applied.site !== undefined ? " (the site’s time zone)" : ""}, currently{" "}
-          <span className="num">{offsetLabel(Date.now(), zone)}</span>. Press Search to apply words and times.
+          <span className="num">{offsetLabel(openedAt, zone)}</span>. Press Search to apply words and times.
         </p>
       </form>
 
@@ -247,16 +248,16 @@ export function EventLog({
                   <td className="num px-2 py-1 whitespace-nowrap" title={isoWithOffset(e.ts, zone)}>
                     {formatZoned(e.ts, zone)}
                   </td>
-                  <td className="px-2 py-1 whitespace-nowrap">{e.priority ? <PriorityMark priority={e.priority} /> : <span className="text-faint">—</span>}</td>
+                  <td className="px-2 py-1 whitespace-nowrap">{e.priority ? <PriorityMark priority={e.priority} /> : <span className="text-muted">—</span>}</td>
                   <td className="px-2 py-1 whitespace-nowrap">{eventKindLabel(e.kind)}</td>
-                  <td className="px-2 py-1">{e.siteName ?? <span className="text-faint">—</span>}</td>
+                  <td className="px-2 py-1">{e.siteName ?? <span className="text-muted">—</span>}</td>
                   <td className="px-2 py-1 whitespace-nowrap">
                     {e.compressorId !== null ? (
                       <Link href={`/compressors/${e.compressorId}?at=${e.ts}`} title="The compressor at the time of this event">
                         {e.compressorName ?? `Compressor ${e.compressorId}`}
                       </Link>
                     ) : (
-                      <span className="text-faint">—</span>
+                      <span className="text-muted">—</span>
                     )}
                   </td>
                   <td className="px-2 py-1">

@@ -1,8 +1,6 @@
 import { queryOptions, type QueryClient } from "@tanstack/react-query";
-import type { AlarmCountsResponse } from "@/app/api/alarms/counts/route";
-import type { AlarmsResponse } from "@/app/api/alarms/route";
-import type { AlarmDto } from "@/shared/alarm-schema";
-import { alarmListQuery, type AlarmListParams } from "../alarms/list-params";
+import type { AlarmCountsResponse, AlarmDto, AlarmsResponse } from "@/shared/alarm-schema";
+import { alarmListQuery, type AlarmListParams } from "@/shared/alarm-list-params";
 import { HttpError } from "./live";
 
 async function getJson<T>(url: string): Promise<T> {

@@ -1,6 +1,6 @@
 import { keepPreviousData, queryOptions } from "@tanstack/react-query";
-import type { EventsResponse } from "@/app/api/events/route";
-import { eventFilterQuery, type EventCursorParam, type EventFilterParams } from "../events/search-params";
+import type { EventsResponse } from "@/shared/event-schema";
+import { eventFilterQuery, type EventCursorParam, type EventFilterParams } from "@/shared/event-schema";
 import { HttpError } from "./live";
 
 async function getJson<T>(url: string): Promise<T> {

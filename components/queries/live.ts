@@ -1,5 +1,5 @@
 import { queryOptions, type QueryClient } from "@tanstack/react-query";
-import type { DisplayLinkDto } from "@/db/display-links";
+import type { DisplayLinkDto } from "@/shared/display-link-schema";
 import type { BoardData, CompressorDetail } from "@/shared/board";
 import type { LiveMessage } from "@/shared/live";
 import { applyLiveToBoard, applyLiveToDetail, liveEntries, mergeBoardData, mergeDetail } from "../board/live-merge";

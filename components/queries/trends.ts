@@ -1,5 +1,5 @@
 import { keepPreviousData, queryOptions } from "@tanstack/react-query";
-import type { DeviceEventDto } from "@/db/trends";
+import type { DeviceEventDto } from "@/shared/board";
 import type { DeliveryHealthResponse } from "@/shared/delivery-health";
 import { trendSpanMs, type TrendResponse, type TrendSignal, type TrendSpan } from "@/shared/board";
 import { HttpError } from "./live";

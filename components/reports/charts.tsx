@@ -149,7 +149,7 @@ export function ComparisonChart({ rows, height = 240 }: { rows: readonly Compari
   );
 }
 
-const priorityFill: Record<Priority, string> = { critical: "#c0161c", warning: "#e3a008", advisory: "#6d4fc2" };
+const priorityFill: Record<Priority, string> = { critical: "#bd161c", warning: "#e3a008", advisory: "#6d4fc2" };
 
 /** A site's alarms by priority, each bar labelled with its word and share, so the split reads without colour. */
 export function PrioritySplitChart({ figures, height = 132 }: { figures: AlarmLoadFigures; height?: number }) {

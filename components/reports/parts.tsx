@@ -23,7 +23,7 @@ export const stateFills = {
   running: "#3d434a", // normal
   standby: "#b9bdc3", // line
   planned: "#7b828b", // faint
-  fault: "#c0161c", // critical
+  fault: "#bd161c", // critical
   noData: "url(#report-hatch)",
 } as const;
 

@@ -42,7 +42,7 @@ export function ReportView({ month, scope, options, latestMonth }: { month: stri
         <div>
           <h1 className="text-2xl font-semibold">Monthly report</h1>
           <p className="text-sm text-muted">
-            Availability, down time and alarm load, per compressor, site and fleet. Month boundaries are in each site's own time zone.
+            Availability, down time and alarm load, per compressor, site and fleet. Month boundaries are in each site’s own time zone.
           </p>
         </div>
         <form

@@ -1,5 +1,5 @@
 import Link from "next/link";
-import { formatZoned } from "@/components/events/zoned-time";
+import { formatZoned } from "@/shared/zoned-time";
 import type { ServiceDueDto, ServiceLogDto } from "@/shared/service-schema";
 import { dueText, intervalText, StatusChip } from "./due-format";
 

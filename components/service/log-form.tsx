@@ -2,7 +2,7 @@
 
 import { useId, useState } from "react";
 import { logService } from "@/lib/actions/service";
-import { utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
+import { utcToZonedLocal, zonedLocalToUtc } from "@/shared/zoned-time";
 import { attachmentAccept, MAX_ATTACHMENT_BYTES, type AttachmentDto } from "@/shared/attachment-schema";
 import type { ServiceOverviewDto } from "@/shared/service-schema";
 

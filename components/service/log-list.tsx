@@ -2,7 +2,7 @@
 
 import { useId, useState } from "react";
 import { correctServiceLog } from "@/lib/actions/service";
-import { formatZoned, utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
+import { formatZoned, utcToZonedLocal, zonedLocalToUtc } from "@/shared/zoned-time";
 import type { ServiceLogDto, ServiceOverviewDto } from "@/shared/service-schema";
 import { uploadFile } from "./log-form";
 import { attachmentAccept } from "@/shared/attachment-schema";

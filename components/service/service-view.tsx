@@ -6,7 +6,7 @@ import { useMemo, useState } from "react";
 import { resetServiceInterval } from "@/lib/actions/service";
 import { serviceKey, serviceQueries, serviceQueryString, type ServiceFilter } from "@/components/queries/service";
 import { FilterSelect } from "@/components/filter-select";
-import { formatZoned } from "@/components/events/zoned-time";
+import { formatZoned } from "@/shared/zoned-time";
 import type { ServiceDueDto } from "@/shared/service-schema";
 import { denialReason } from "@/shared/roles";
 import { statusRank } from "@/shared/service-due";

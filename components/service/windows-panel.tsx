@@ -2,7 +2,7 @@
 
 import { useId, useState } from "react";
 import { addServiceWindow } from "@/lib/actions/service";
-import { formatZoned, zonedLocalToUtc } from "@/components/events/zoned-time";
+import { formatZoned, zonedLocalToUtc } from "@/shared/zoned-time";
 import type { ServiceOverviewDto } from "@/shared/service-schema";
 
 /** Planned service windows: the monthly report shows their time as planned service, apart from outages. */

@@ -14,7 +14,7 @@ const INK = "#1b1e22";
 const MUTED = "#555b63";
 const FAINT = "#7b828b";
 const LINE = "#b9bdc3";
-const priorityColour: Record<Priority, string> = { critical: "#c0161c", warning: "#e3a008", advisory: "#6d4fc2" };
+const priorityColour: Record<Priority, string> = { critical: "#bd161c", warning: "#e3a008", advisory: "#6d4fc2" };
 const initial: Record<Priority, string> = { critical: "C", warning: "W", advisory: "A" };
 
 /** Octagon, triangle, diamond (the priority shapes of tailwind.config.ts) as SVG points around (x, y). */

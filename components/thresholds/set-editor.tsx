@@ -2,7 +2,7 @@
 
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useEffect, useId, useMemo, useRef, useState, type FormEvent } from "react";
-import { revertThresholds, saveThresholds } from "@/app/(app)/thresholds/actions";
+import { revertThresholds, saveThresholds } from "@/lib/actions/thresholds";
 import { alarmSignals, limitKey, priorities, signalInfo, type AlarmSignal, type Priority } from "@/shared/alarm-rules";
 import {
   diffRows,
@@ -117,13 +117,11 @@ function LimitsForm({ set, scopeType, scopeId }: { set: ThresholdSetDto; scopeTy
   const backtested = lastRun !== null && lastRun.rowsKey === rowsKey;
 
   // Someone saved (this person elsewhere, a revert, a colleague): an untouched form simply follows.
-  useEffect(() => {
-    if (set.version !== base.version && changes.length === 0 && reason === "") {
-      setBase(set);
-      setDraft(draftFrom(scopeType, set.rows, set.inherited, units));
-      setRefusal(null);
-    }
-  }, [set, base.version, changes.length, reason, scopeType, units]);
+  if (set.version !== base.version && changes.length === 0 && reason === "") {
+    setBase(set);
+    setDraft(draftFrom(scopeType, set.rows, set.inherited, units));
+    setRefusal(null);
+  }
 
   // Units switched while editing: the typed numbers follow, standing for the same values.
   const shownUnits = useRef(units);
@@ -320,7 +318,7 @@ function LimitsForm({ set, scopeType, scopeId }: { set: ThresholdSetDto; scopeTy
             aria-describedby={reasonError ? `${id}-reason-error` : `${id}-reason-hint`}
             className="mt-0.5 w-full max-w-2xl rounded border border-line bg-white px-2 py-1 text-sm aria-[invalid=true]:border-2 aria-[invalid=true]:border-ink"
           />
-          <p id={`${id}-reason-hint`} className="text-xs text-faint">
+          <p id={`${id}-reason-hint`} className="text-xs text-muted">
             At least {REASON_MIN} characters; kept with the change in the audit log and the event log.
           </p>
           <FieldError id={`${id}-reason-error`} message={reasonError} />
@@ -380,7 +378,7 @@ function LimitLine({
         <PriorityMark priority={line.priority} />
       </th>
       {scopeType === "compressor" && (
-        <td className="px-2 py-1.5 text-xs">{line.inherited ? <span className="num">{rowText(line.inherited, units)}</span> : <span className="text-faint">—</span>}</td>
+        <td className="px-2 py-1.5 text-xs">{line.inherited ? <span className="num">{rowText(line.inherited, units)}</span> : <span className="text-muted">—</span>}</td>
       )}
       <td className="px-2 py-1.5">
         {scopeType === "model" ? (
@@ -418,7 +416,7 @@ function LimitLine({
         return (
           <td key={f} className="px-2 py-1.5 text-right">
             {line.mode === "off" ? (
-              <span className="text-faint">—</span>
+              <span className="text-muted">—</span>
             ) : (
               <div className="flex items-center justify-end gap-1">
                 <input

@@ -1,9 +1,9 @@
 /**
  * Where air-quality code raises and clears its alarms (failed or overdue test, cartridge use): condition alarms of the
- * family "air-quality" (lib/alarms/conditions.ts), on the same ISA-18.2 lifecycle, events and e-mail as limit alarms.
+ * family "air-quality" (db/alarm-conditions.ts), on the same ISA-18.2 lifecycle, events and e-mail as limit alarms.
  */
 import type { Db } from "@/db/client";
-import { clearConditionAlarm, raiseConditionAlarm } from "@/lib/alarms/conditions";
+import { clearConditionAlarm, raiseConditionAlarm } from "@/db/alarm-conditions";
 import { AIR_ALARM_FAMILY, airAlarmPriority, type AirAlarmKind } from "@/shared/air-quality-alarms";
 
 export type AirAlarmChange = { kind: AirAlarmKind; action: "raise" | "clear"; alarmId: number };

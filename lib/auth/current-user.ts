@@ -1,6 +1,7 @@
 import { getServerSession } from "next-auth";
 import { headers } from "next/headers";
 import { forbidden, redirect } from "next/navigation";
+import { cache } from "react";
 import { getDb } from "@/db/client";
 import { PAGE_PATH_HEADER, signInUrl } from "@/shared/callback-url";
 import { can, denialReason, type Permission } from "@/shared/roles";
@@ -18,11 +19,14 @@ export class AccessError extends Error {
   }
 }
 
-/** The signed-in person, checked against the database on every call. */
-export async function currentUser(): Promise<CurrentUser | null> {
+/**
+ * The signed-in person, checked against the database once per request: React's cache() shares the answer between a
+ * layout and its page within one server render (route handlers and server actions call it once anyway).
+ */
+export const currentUser = cache(async (): Promise<CurrentUser | null> => {
   const session = await getServerSession(authOptions);
   return session ? resolveSession(getDb(), { uid: session.uid, sid: session.sid }) : null;
-}
+});
 
 export async function requireUser(): Promise<CurrentUser> {
   const user = await currentUser();

@@ -1,6 +1,6 @@
 /**
  * The backtest's evaluation: every stored sample goes through the pure evaluator (shared/alarm-eval.ts) with the limits
- * in force and with the proposed ones, built exactly as the live engine builds it (lib/alarms/engine.ts → evaluate):
+ * in force and with the proposed ones, built exactly as the live engine builds it (db/alarm-engine.ts → evaluate):
  * the final-stage temperature from the model's fitted stages, a restart between two running readings (the start
  * counter moved) restarting the settling time, and a reading no newer than the last one skipped. What it counts is what
  * each set would have raised, to the reading.

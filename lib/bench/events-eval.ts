@@ -8,7 +8,7 @@ import { openDatabase, type Db } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { thresholdLimits, thresholdSets } from "@/db/schema";
 import { allEffectiveLimits } from "@/db/thresholds";
-import { createAlarmEngine } from "@/lib/alarms/engine";
+import { createAlarmEngine } from "@/db/alarm-engine";
 import { evaluateSample, finalStageTemperature, initialEvaluatorState, type AlarmSample, type EvaluatorState } from "@/shared/alarm-eval";
 import { defaultAlarmSettings, type Limit } from "@/shared/alarm-rules";
 import { runStateCode, type ReadingInput } from "@/shared/telemetry";

@@ -7,7 +7,7 @@ import fs from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { parseArgs } from "node:util";
-import { comparisonCsv, reportCsv } from "@/app/api/reports/csv";
+import { comparisonCsv, reportCsv } from "@/lib/reports/csv";
 import { openDatabase } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { deliveryMonthRows } from "@/db/delivery";

@@ -172,10 +172,10 @@ export class FastMemoryPersistence {
   }
 
   createRetainedStreamCombi(patterns: string[]): Readable {
-    const self = this;
+    const matching = (p: string) => this.retainedMatching(p);
     return Readable.from(
       (function* () {
-        for (const p of patterns) yield* self.retainedMatching(p);
+        for (const p of patterns) yield* matching(p);
       })(),
     );
   }

@@ -11,8 +11,8 @@ import {
 import { INGEST_CLIENT_ID, INGEST_TOPIC, INGEST_USERNAME } from "@/lib/broker/ingest-credential";
 import { type ReadingInput, telemetryToReading } from "@/shared/telemetry";
 import { classifyMessage, DEFAULT_TIME_LIMITS, type RejectReason, rejectReasons, type TimeLimits } from "./classify";
-import { createAlarmEngine, type AlarmTransition } from "@/lib/alarms/engine";
-import { createDeliveryRecorder } from "@/lib/delivery/recorder";
+import { createAlarmEngine, type AlarmTransition } from "@/db/alarm-engine";
+import { createDeliveryRecorder } from "@/db/delivery-recorder";
 import { startCheckpointer } from "./checkpointer";
 import { createDeviceDirectory } from "./device-directory";
 import { liveAccessCheck } from "./live-access";

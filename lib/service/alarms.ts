@@ -2,8 +2,8 @@ import type { Db } from "@/db/client";
 import { fillHourMetersFromTelemetry, serviceDueList } from "@/db/service";
 import { compressors } from "@/db/schema";
 import { eq } from "drizzle-orm";
-import { syncConditionAlarms } from "@/lib/alarms/conditions";
-import type { AlarmTransition } from "@/lib/alarms/transitions";
+import { syncConditionAlarms } from "@/db/alarm-conditions";
+import type { AlarmTransition } from "@/db/alarm-transitions";
 import type { ServiceDueDto } from "@/shared/service-schema";
 
 // Service tasks coming due raise an advisory, overdue ones a warning (condition alarms: same lifecycle, event log and

@@ -9,7 +9,7 @@ import {
   shelveAlarms,
 } from "@/db/alarms";
 import type { Db } from "@/db/client";
-import type { AlarmEngine } from "@/lib/alarms/engine";
+import type { AlarmEngine } from "@/db/alarm-engine";
 import { at, feed, makeTempDb, newEngine, reading, seedFleet, type Fleet, type TempDb } from "./alarms-fixtures";
 
 // Operator transitions are checked against the ANSI/ISA-18.2-2016 state diagram: an input that does not apply in the

@@ -1,8 +1,8 @@
 import { and, eq } from "drizzle-orm";
 import { afterAll, describe, expect, it } from "vitest";
 import { alarms, events, mailOutbox } from "@/db/schema";
-import { clearConditionAlarm, raiseConditionAlarm, syncConditionAlarms } from "@/lib/alarms/conditions";
-import { createAlarmEngine } from "@/lib/alarms/engine";
+import { clearConditionAlarm, raiseConditionAlarm, syncConditionAlarms } from "@/db/alarm-conditions";
+import { createAlarmEngine } from "@/db/alarm-engine";
 import { notifyTick } from "@/lib/notify/notifier";
 import { alarmTitle } from "@/shared/alarm-text";
 import { openWorld, tempDir, testConfig } from "./notify-fixtures";

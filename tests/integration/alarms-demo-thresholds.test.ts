@@ -5,7 +5,7 @@ import { demoCompressors, demoModels, demoSites } from "@/db/demo-scenario";
 import { demoModelLimits, seedDemoThresholds } from "@/db/demo-thresholds";
 import { seedDemo } from "@/db/seed";
 import { effectiveLimits } from "@/db/thresholds";
-import { createAlarmEngine, type AlarmEngine, type AlarmTransition } from "@/lib/alarms/engine";
+import { createAlarmEngine, type AlarmEngine, type AlarmTransition } from "@/db/alarm-engine";
 import { limitKey } from "@/shared/alarm-rules";
 import { telemetryToReading, type ReadingInput } from "@/shared/telemetry";
 import { CompressorModel, defaultOilPump, type CompressorSpec } from "@/simulator/model/compressor";

@@ -1,7 +1,7 @@
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
 import { acknowledgeAlarms, activeAlarmCounts, listAlarms, returnToService, setOutOfService, shelveAlarms } from "@/db/alarms";
 import type { Db } from "@/db/client";
-import type { AlarmEngine } from "@/lib/alarms/engine";
+import type { AlarmEngine } from "@/db/alarm-engine";
 import type { AlarmState } from "@/shared/alarm-lifecycle";
 import { at, feed, makeTempDb, newEngine, reading, seedFleet, type Fleet, type ReadingPatch, type TempDb } from "./alarms-fixtures";
 

@@ -4,7 +4,7 @@ import path from "node:path";
 import { openDatabase, type Db } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { thresholdLimits, thresholdSets } from "@/db/schema";
-import { createAlarmEngine, type AlarmEngine, type AlarmTransition } from "@/lib/alarms/engine";
+import { createAlarmEngine, type AlarmEngine, type AlarmTransition } from "@/db/alarm-engine";
 import type { AlarmSettings, Limit } from "@/shared/alarm-rules";
 import { runStateCode, type ReadingInput, type RunState } from "@/shared/telemetry";
 

@@ -1,7 +1,7 @@
 import { beforeAll, describe, expect, it } from "vitest";
 import { acknowledgeAlarms, shelveAlarms } from "@/db/alarms";
 import type { Db } from "@/db/client";
-import type { AlarmEngine } from "@/lib/alarms/engine";
+import type { AlarmEngine } from "@/db/alarm-engine";
 import type { AlarmSettings } from "@/shared/alarm-rules";
 import type { ReadingInput } from "@/shared/telemetry";
 import { at, dump, feed, makeTempDb, newEngine, reading, seedFleet, type Fleet, type ReadingPatch } from "./alarms-fixtures";

@@ -1,7 +1,7 @@
 import { afterEach, beforeEach, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { allEffectiveLimits, effectiveLimits, thresholdsVersion } from "@/db/thresholds";
-import type { AlarmEngine } from "@/lib/alarms/engine";
+import type { AlarmEngine } from "@/db/alarm-engine";
 import { limitKey, type Limit } from "@/shared/alarm-rules";
 import { at, feed, makeTempDb, modelLimits, newEngine, reading, seedFleet, setLimits, type Fleet, type TempDb } from "./alarms-fixtures";
 

@@ -1,7 +1,7 @@
 import { afterEach, describe, expect, it } from "vitest";
 import type { Db } from "@/db/client";
 import { effectiveLimits } from "@/db/thresholds";
-import { createAlarmEngine, type AlarmTransition } from "@/lib/alarms/engine";
+import { createAlarmEngine, type AlarmTransition } from "@/db/alarm-engine";
 import { backtestWindow } from "@/lib/backtest/run";
 import type { AlarmEvent } from "@/shared/alarm-eval";
 import { alarmSignals, priorities, type AlarmSettings, type AlarmSignal, type Limit, type Priority } from "@/shared/alarm-rules";

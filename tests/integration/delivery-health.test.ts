@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { type Db, openDatabase } from "@/db/client";
 import { deliveryAdvisorySettings, deliveryMonthRows, listFillDeliveries } from "@/db/delivery";
 import { runMigrations } from "@/db/migrate";
-import { DELIVERY_ALARM_KEY } from "@/lib/delivery/recorder";
+import { DELIVERY_ALARM_KEY } from "@/db/delivery-recorder";
 import { backfill } from "@/simulator/backfill";
 import type { DemoDevice } from "@/simulator/devices";
 

@@ -10,10 +10,10 @@ import {
   iterateEvents,
   searchEvents,
   type EventCursor,
-  type EventDto,
   type EventFilter,
   type EventScope,
 } from "@/db/event-search";
+import type { EventDto } from "@/shared/event-schema";
 import { appendEvent } from "@/db/events";
 import { runMigrations } from "@/db/migrate";
 import type { Priority } from "@/shared/alarm-rules";

@@ -17,7 +17,7 @@ import {
 } from "@/db/contacts";
 import { demoSites } from "@/db/demo-scenario";
 import { runMigrations } from "@/db/migrate";
-import { auditLog, contacts, events, notificationRules, onCallEntries, sites } from "@/db/schema";
+import { auditLog, events, notificationRules, onCallEntries, sites } from "@/db/schema";
 import { createUser } from "@/db/users";
 import { contactInputSchema, rotaEntryInputSchema, ruleInputSchema } from "@/shared/contact-schema";
 import { tempDir } from "./notify-fixtures";

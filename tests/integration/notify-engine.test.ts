@@ -2,7 +2,7 @@ import { eq } from "drizzle-orm";
 import { afterAll, afterEach, beforeEach, describe, expect, it } from "vitest";
 import { acknowledgeAlarms } from "@/db/alarms";
 import { alarms, compressors, mailOutbox, mailReceived, thresholdLimits, thresholdSets, users } from "@/db/schema";
-import { createAlarmEngine, type AlarmEngine } from "@/lib/alarms/engine";
+import { createAlarmEngine, type AlarmEngine } from "@/db/alarm-engine";
 import type { OutboxSender } from "@/lib/mail/outbox";
 import { startSmtpFake, type SmtpFake } from "@/lib/mail/smtp-fake";
 import { notifyTick } from "@/lib/notify/notifier";

@@ -1,5 +1,5 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { comparisonCsv, reportCsv } from "@/app/api/reports/csv";
+import { comparisonCsv, reportCsv } from "@/lib/reports/csv";
 import { openDatabase, type Db } from "@/db/client";
 import { runMigrations } from "@/db/migrate";
 import { createReadingStore } from "@/db/readings";

@@ -17,7 +17,7 @@ vi.mock("next-auth", async (importOriginal) => ({
 }));
 vi.mock("next/headers", () => ({ headers: async () => new Headers({ "x-forwarded-for": "192.0.2.10" }) }));
 
-const { saveThresholds, revertThresholds } = await import("@/app/(app)/thresholds/actions");
+const { saveThresholds, revertThresholds } = await import("@/lib/actions/thresholds");
 // As behind Airkeep's web server, which rewrites X-Forwarded-For to the client's address before the app reads it.
 (await import("@/lib/web/request-facts")).markForwardedHeadersChecked();
 

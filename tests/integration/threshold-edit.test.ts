@@ -10,7 +10,7 @@ import {
   type ThresholdActor,
 } from "@/db/threshold-edit";
 import { effectiveLimits } from "@/db/thresholds";
-import type { AlarmEngine } from "@/lib/alarms/engine";
+import type { AlarmEngine } from "@/db/alarm-engine";
 import { limitKey } from "@/shared/alarm-rules";
 import type { ThresholdRow } from "@/shared/threshold-schema";
 import { at, feed, makeTempDb, modelLimits, newEngine, reading, seedFleet, type Fleet, type TempDb } from "./alarms-fixtures";

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { deviceTopicPrefix, newDeviceSecret } from "@/app/(app)/admin/compressors/credential";
+import { deviceTopicPrefix, newDeviceSecret } from "@/lib/broker/device-credential";
 import { constraintViolation } from "@/db/admin";
 import { parseTopic, topicFor } from "@/shared/telemetry";
 

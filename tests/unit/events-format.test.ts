@@ -7,9 +7,10 @@ import {
   lenientEventSearchParams,
   parseEventSearchParams,
   zoneChoices,
-} from "@/components/events/search-params";
-import { formatZoned, isoWithOffset, offsetMinutes, utcToZonedLocal, zonedLocalToUtc } from "@/components/events/zoned-time";
-import { ftsQuery, type EventDto } from "@/db/event-search";
+} from "@/shared/event-schema";
+import { formatZoned, isoWithOffset, offsetMinutes, utcToZonedLocal, zonedLocalToUtc } from "@/shared/zoned-time";
+import { ftsQuery } from "@/db/event-search";
+import type { EventDto } from "@/shared/event-schema";
 
 /** A strict reader of RFC 4180 text, to check what the writer produces round-trips. */
 function parseCsv(text: string): string[][] {

@@ -1,6 +1,6 @@
 import { dehydrate, HydrationBoundary } from "@tanstack/react-query";
 import { AlarmList } from "@/components/alarms/alarm-list";
-import { lenientAlarmListParams } from "@/components/alarms/list-params";
+import { lenientAlarmListParams } from "@/shared/alarm-list-params";
 import { alarmQueries } from "@/components/queries/alarms";
 import { makeQueryClient } from "@/components/query-client";
 import { getAlarm, listAlarms } from "@/db/alarms";

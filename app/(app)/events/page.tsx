@@ -1,8 +1,8 @@
 import { dehydrate, HydrationBoundary } from "@tanstack/react-query";
-import type { EventsResponse } from "@/app/api/events/route";
+import type { EventsResponse } from "@/shared/event-schema";
 import { resolveEventQuery } from "@/app/api/events/filter";
 import { EventLog } from "@/components/events/event-log";
-import { encodeCursor, filterParamsOf, lenientEventSearchParams } from "@/components/events/search-params";
+import { encodeCursor, filterParamsOf, lenientEventSearchParams } from "@/shared/event-schema";
 import { eventQueries, EVENTS_PAGE_SIZE } from "@/components/queries/events";
 import { makeQueryClient } from "@/components/query-client";
 import { getDb } from "@/db/client";

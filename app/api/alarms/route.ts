@@ -1,15 +1,13 @@
 import { NextResponse } from "next/server";
 import { listAlarms } from "@/db/alarms";
 import { getDb } from "@/db/client";
-import { parseAlarmListParams } from "@/components/alarms/list-params";
+import { parseAlarmListParams } from "@/shared/alarm-list-params";
 import { route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
-import type { AlarmDto } from "@/shared/alarm-schema";
+import type { AlarmsResponse } from "@/shared/alarm-schema";
 import { alarmSiteIds } from "./scope";
 
 export const dynamic = "force-dynamic";
-
-export type AlarmsResponse = { alarms: AlarmDto[]; at: number };
 
 /**
  * Alarms not back to normal in the caller's sites, critical first then newest; filters: site, compressor, priority,

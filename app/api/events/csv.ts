@@ -1,5 +1,5 @@
-import type { EventDto } from "@/db/event-search";
-import { isoWithOffset } from "@/components/events/zoned-time";
+import type { EventDto } from "@/shared/event-schema";
+import { isoWithOffset } from "@/shared/zoned-time";
 import { csvField, csvRecord, csvText } from "@/shared/csv";
 
 

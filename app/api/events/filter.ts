@@ -1,8 +1,8 @@
 import type { Db } from "@/db/client";
 import { eventScopeOf, type EventFilter, type EventScope } from "@/db/event-search";
 import { listSites } from "@/db/sites";
-import { effectiveZone, type EventSearchParams } from "@/components/events/search-params";
-import { zonedLocalToUtc } from "@/components/events/zoned-time";
+import { effectiveZone, type EventSearchParams } from "@/shared/event-schema";
+import { zonedLocalToUtc } from "@/shared/zoned-time";
 import type { CurrentUser } from "@/lib/auth/current-user";
 import type { SiteDto } from "@/shared/site-schema";
 

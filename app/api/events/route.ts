@@ -1,24 +1,14 @@
 import { NextResponse } from "next/server";
 import { getDb } from "@/db/client";
-import { searchEvents, type EventDto } from "@/db/event-search";
-import { parseEventSearchParams, encodeCursor } from "@/components/events/search-params";
+import { searchEvents } from "@/db/event-search";
+import { parseEventSearchParams, encodeCursor, type EventsResponse } from "@/shared/event-schema";
 import { errorJson, route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
 import { resolveEventQuery } from "./filter";
 
 export const dynamic = "force-dynamic";
 
-export type EventsResponse = {
-  events: EventDto[];
-  /** Cursor of the next (older) page, "ts.id"; null at the end. */
-  next: string | null;
-  /** The search stopped at its budget before the page filled; older matches may exist beyond `next`. */
-  partial: boolean;
-  /** Zone the time range was read in. */
-  zone: string;
-};
-
-/** One page of the event log, newest first; filters and cursor as URL parameters (see search-params.ts). */
+/** One page of the event log, newest first; filters and cursor as URL parameters (see shared/event-schema.ts). */
 export const GET = route(async (request: Request) => {
   const user = await requirePermission("events.view");
   const p = parseEventSearchParams(new URL(request.url).searchParams);

@@ -4,7 +4,7 @@ import { getDb } from "@/db/client";
 import { listDisplayLinks } from "@/db/display-links";
 import { listSites } from "@/db/sites";
 import { pageUser } from "@/lib/auth/current-user";
-import { DisplayLinksAdmin } from "./display-links-admin";
+import { DisplayLinksAdmin } from "@/components/admin/display-links-admin";
 
 export const metadata = { title: "Display links · Admin" };
 export const dynamic = "force-dynamic";

@@ -3,11 +3,9 @@ import { activeAlarmCounts } from "@/db/alarms";
 import { getDb } from "@/db/client";
 import { route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
-import type { AlarmCounts } from "@/components/alarms/alarm-badges";
+import type { AlarmCountsResponse } from "@/shared/alarm-schema";
 
 export const dynamic = "force-dynamic";
-
-export type AlarmCountsResponse = { counts: Record<string, AlarmCounts>; at: number };
 
 /** Active alarms per compressor and priority in the caller's sites (for the board's tiles). */
 export const GET = route(async () => {

@@ -1,6 +1,6 @@
 import { getDb } from "@/db/client";
-import { iterateEventChunks, type EventDto } from "@/db/event-search";
-import { parseEventSearchParams } from "@/components/events/search-params";
+import { iterateEventChunks } from "@/db/event-search";
+import { parseEventSearchParams, type EventDto } from "@/shared/event-schema";
 import { errorJson, route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
 import { eventCsvHeader, eventCsvRecord } from "../csv";

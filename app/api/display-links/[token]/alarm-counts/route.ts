@@ -2,7 +2,7 @@ import { NextResponse } from "next/server";
 import { activeAlarmCounts } from "@/db/alarms";
 import { getDb } from "@/db/client";
 import { resolveDisplayLink } from "@/db/display-links";
-import type { AlarmCountsResponse } from "@/app/api/alarms/counts/route";
+import type { AlarmCountsResponse } from "@/shared/alarm-schema";
 import { noStore } from "@/app/api/live/hub-address";
 import { errorJson, route } from "@/lib/api/route";
 

@@ -2,7 +2,7 @@ import { getDb } from "@/db/client";
 import { buildComparison, buildMonthlyReport } from "@/db/reports";
 import { errorJson, route } from "@/lib/api/route";
 import { csvTableSchema } from "@/shared/availability";
-import { comparisonCsv, reportCsv } from "../../csv";
+import { comparisonCsv, reportCsv } from "@/lib/reports/csv";
 import { readReportRequest } from "../../request";
 
 export const dynamic = "force-dynamic";

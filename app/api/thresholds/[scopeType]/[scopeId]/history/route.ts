@@ -3,7 +3,7 @@ import { getDb } from "@/db/client";
 import { thresholdHistory } from "@/db/threshold-edit";
 import { errorJson, route } from "@/lib/api/route";
 import { requirePermission } from "@/lib/auth/current-user";
-import { scopeFrom } from "../../../access";
+import { scopeFrom } from "@/lib/thresholds/access";
 
 export const dynamic = "force-dynamic";
 

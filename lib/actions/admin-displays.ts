@@ -2,11 +2,11 @@
 
 import { headers } from "next/headers";
 import { getDb } from "@/db/client";
-import { createDisplayLink, DisplayLinkRefusal, revokeDisplayLink, type DisplayLinkDto } from "@/db/display-links";
+import { createDisplayLink, DisplayLinkRefusal, revokeDisplayLink } from "@/db/display-links";
 import { ActionFailure, runAction } from "@/lib/api/action";
 import { requestOrigin } from "@/lib/web/request-facts";
-import { actorOf } from "../action-support";
-import { displayLinkInputSchema, displayLinkRevokeSchema } from "./schema";
+import { actorOf } from "./admin-support";
+import { displayLinkInputSchema, displayLinkRevokeSchema, type DisplayLinkDto } from "@/shared/display-link-schema";
 
 function refusals<T>(write: () => T): T {
   try {

@@ -1,7 +1,7 @@
 import { z } from "zod";
-import { prioritySchema } from "@/shared/alarm-rules";
+import { prioritySchema, type Priority } from "@/shared/alarm-rules";
 import { isValidTimeZone } from "@/shared/site-schema";
-import { eventKinds } from "./kinds";
+import { eventKinds } from "./event-kinds";
 
 // The event log's filters as URL parameters: one parser for the page, the JSON route and the CSV export, and one
 // writer for the links the client builds. Times are wall-clock times ("2025-03-14T08:00") in the zone the person
@@ -108,3 +108,31 @@ export function effectiveZone(p: Pick<EventFilterParams, "site" | "tz">, sites: 
   if (p.tz && (choices.some((c) => c.timeZone === p.tz) || (choices.length === 0 && p.tz === "UTC"))) return p.tz;
   return choices[0]?.timeZone ?? "UTC";
 }
+
+/** One row of the event log as the page, the JSON route and the CSV export show it. */
+export type EventDto = {
+  id: number;
+  ts: number;
+  kind: string;
+  action: string;
+  priority: Priority | null;
+  siteId: number | null;
+  siteName: string | null;
+  timeZone: string | null;
+  compressorId: number | null;
+  compressorName: string | null;
+  alarmId: number | null;
+  actor: string;
+  text: string;
+};
+
+/** GET /api/events */
+export type EventsResponse = {
+  events: EventDto[];
+  /** Cursor of the next (older) page, "ts.id"; null at the end. */
+  next: string | null;
+  /** The search stopped at its budget before the page filled; older matches may exist beyond `next`. */
+  partial: boolean;
+  /** Zone the time range was read in. */
+  zone: string;
+};

@@ -1,7 +1,7 @@
 import type { Db } from "@/db/client";
 import { deliveryAdvisorySettings, deliveryUnits, type DeliveryUnit, insertFillDelivery, lastFillShares } from "@/db/delivery";
-import { clearConditionAlarm, raiseConditionAlarm } from "@/lib/alarms/conditions";
-import type { AlarmTransition } from "@/lib/alarms/transitions";
+import { clearConditionAlarm, raiseConditionAlarm } from "@/db/alarm-conditions";
+import type { AlarmTransition } from "@/db/alarm-transitions";
 import { conditionKey } from "@/shared/alarm-conditions";
 import { deliveryAdvisory, type DeliveryAdvisorySettings, FillTracker } from "@/shared/delivery-health";
 import { runStateCode, type ReadingInput } from "@/shared/telemetry";

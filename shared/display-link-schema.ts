@@ -8,3 +8,15 @@ export const displayLinkInputSchema = z.object({
 export type DisplayLinkInput = z.infer<typeof displayLinkInputSchema>;
 
 export const displayLinkRevokeSchema = z.object({ id: z.number().int().positive() });
+
+export type DisplayLinkDto = {
+  id: number;
+  label: string;
+  /** null: every site. */
+  siteIds: number[] | null;
+  siteNames: string[] | null;
+  createdByName: string;
+  createdAt: number;
+  revokedAt: number | null;
+  lastUsedAt: number | null;
+};

@@ -28,7 +28,7 @@ import {
 } from "@/shared/contact-schema";
 import { composeTestMail } from "@/shared/notify-text";
 import { defaultUnits } from "@/shared/units";
-import { actorOf, asFailures } from "../action-support";
+import { actorOf, asFailures } from "./admin-support";
 
 /** { name, email, userId, active, note } */
 export async function createContact(input: unknown) {

@@ -6,7 +6,7 @@ import { revertThresholdChange, saveThresholdSet, ThresholdRefusal, type SaveThr
 import { ActionFailure, runAction, type ActionResult } from "@/lib/api/action";
 import { AccessError } from "@/lib/auth/current-user";
 import { thresholdRevertSchema, thresholdScopeSchema } from "@/shared/threshold-schema";
-import { thresholdActor } from "@/app/api/thresholds/access";
+import { thresholdActor } from "@/lib/thresholds/access";
 
 // The save's full rules need what the set inherits, so the shared schema (shared/threshold-schema.ts) is applied in
 // saveThresholdSet with that context; here only the envelope is checked, after the permission.

@@ -6,8 +6,8 @@ import { getDb } from "@/db/client";
 import { runAction } from "@/lib/api/action";
 import { hashPassword } from "@/lib/auth/password";
 import { compressorInputSchema, compressorUpdateSchema } from "@/shared/compressor-schema";
-import { actorOf, asFailures } from "../action-support";
-import { deviceTopicPrefix, newDeviceSecret, type DeviceCredential } from "./credential";
+import { actorOf, asFailures } from "./admin-support";
+import { deviceTopicPrefix, newDeviceSecret, type DeviceCredential } from "@/lib/broker/device-credential";
 
 /** { name, siteId, modelId, serial, deviceId, stopPressureBar, restartPressureBar, bankVolumeL, inService } */
 export async function createCompressor(input: unknown) {

@@ -4,7 +4,7 @@ import { adminCreateModel, adminUpdateModel } from "@/db/admin";
 import { getDb } from "@/db/client";
 import { runAction } from "@/lib/api/action";
 import { compressorModelInputSchema, compressorModelUpdateSchema } from "@/shared/compressor-schema";
-import { actorOf, asFailures } from "../action-support";
+import { actorOf, asFailures } from "./admin-support";
 
 /** { name, maker, stages, ratedDeliveryLpm, ratedPressureBar } */
 export async function createCompressorModel(input: unknown) {

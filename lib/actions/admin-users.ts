@@ -5,7 +5,7 @@ import { getDb } from "@/db/client";
 import { runAction } from "@/lib/api/action";
 import { hashPassword } from "@/lib/auth/password";
 import { userInviteSchema, userUpdateSchema } from "@/shared/user-schema";
-import { actorOf, asFailures } from "../action-support";
+import { actorOf, asFailures } from "./admin-support";
 
 /** Creates an account: { email, name, role, siteIds: number[] (empty = every site), password }. */
 export async function inviteUser(input: unknown) {

@@ -7,7 +7,7 @@
  * changes (a transition, or an evaluator timer to persist), once per batch, in one transaction.
  *
  * Restart safety: open alarms are the truth for what is active; the evaluator's timers are persisted beside them in the
- * same transaction (lib/alarms/snapshot.ts). A new engine on the same database neither loses, repeats nor invents an
+ * same transaction (db/alarm-snapshot.ts). A new engine on the same database neither loses, repeats nor invents an
  * alarm, provided each reading is evaluated in the transaction that stores it (see onReadings).
  */
 import { and, eq, inArray, lte } from "drizzle-orm";
@@ -28,7 +28,7 @@ import { defaultAlarmSettings, limitKey, type AlarmSettings, type AlarmSignal, t
 import { isConditionKey } from "@/shared/alarm-conditions";
 import { COMMS_ALARM_KEY } from "@/shared/alarm-text";
 import { runStateCode, runStates, type ReadingInput, type RunState } from "@/shared/telemetry";
-import { createSnapshotStore, parseSnapshot, type EngineSnapshot } from "./snapshot";
+import { createSnapshotStore, parseSnapshot, type EngineSnapshot } from "./alarm-snapshot";
 import {
   applyClear,
   applyRaise,
@@ -39,9 +39,9 @@ import {
   findOpenAlarm,
   type AlarmTransition,
   type UnitRef,
-} from "./transitions";
+} from "./alarm-transitions";
 
-export type { AlarmTransition } from "./transitions";
+export type { AlarmTransition } from "./alarm-transitions";
 
 export type AlarmEngineOptions = {
   settings?: AlarmSettings;
@@ -247,7 +247,7 @@ export function createAlarmEngine(db: Db, opts: AlarmEngineOptions = {}): AlarmE
       }
     }
     for (const key of activeKeys) {
-      // Condition alarms (lib/alarms/conditions.ts) are raised and cleared by their own callers, never by limits.
+      // Condition alarms (db/alarm-conditions.ts) are raised and cleared by their own callers, never by limits.
       if (key === TRIP_KEY || key === COMMS_ALARM_KEY || isConditionKey(key)) continue;
       state.limits[key] ??= { active: true, since: null, raises: [] };
     }

@@ -4,7 +4,7 @@ import { adminCreateSite, adminUpdateSite } from "@/db/admin";
 import { getDb } from "@/db/client";
 import { runAction } from "@/lib/api/action";
 import { siteInputSchema, siteUpdateSchema } from "@/shared/site-schema";
-import { actorOf, asFailures } from "../action-support";
+import { actorOf, asFailures } from "./admin-support";
 
 /** { name, code, timeZone, address } */
 export async function createSite(input: unknown) {

@@ -4,9 +4,9 @@ import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRef, useState, type FormEvent } from "react";
 import { buttonClass, CheckboxGroupField, FormAlert, FormPanel, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { displayLinkQueries } from "@/components/queries/live";
-import type { DisplayLinkDto } from "@/db/display-links";
-import { createDisplayLinkAction, revokeDisplayLinkAction, type CreatedDisplayLink } from "./actions";
-import { displayLinkInputSchema, type DisplayLinkInput } from "./schema";
+import type { DisplayLinkDto } from "@/shared/display-link-schema";
+import { createDisplayLinkAction, revokeDisplayLinkAction, type CreatedDisplayLink } from "@/lib/actions/admin-displays";
+import { displayLinkInputSchema, type DisplayLinkInput } from "@/shared/display-link-schema";
 
 /** "2025-03-14 14:05 UTC": the same on the server and in every browser. */
 function utc(ms: number | null): string {
@@ -150,7 +150,7 @@ export function DisplayLinksAdmin({
 
       {creating && (
         <FormPanel title="New display link">
-          <form ref={form.formRef} onSubmit={submit} noValidate className="grid max-w-2xl gap-3">
+          <form id={form.id} onSubmit={submit} noValidate className="grid max-w-2xl gap-3">
             <FormAlert message={form.formError} />
             <TextField form={form} name="label" label="Label" hint="Where the screen is, e.g. “Control room east wall”." maxLength={80} />
             <CheckboxGroupField

@@ -1,7 +1,7 @@
 /**
  * The entry point for condition alarms: any part of Airkeep that judges a state of affairs (a service task overdue, an
  * air test failed, a purifier cartridge near its end) raises and clears its alarms here. They take the same ISA-18.2
- * lifecycle as limit alarms (lib/alarms/transitions.ts), the same alarms table, event-log entries and e-mail (the mail
+ * lifecycle as limit alarms (db/alarm-transitions.ts), the same alarms table, event-log entries and e-mail (the mail
  * process's notifier reads the alarms table), and acknowledge, shelve and out-of-service work on them as on any alarm.
  * The alarm engine never clears them: only their caller knows when the condition has gone.
  *
@@ -13,7 +13,7 @@ import type { Db } from "@/db/client";
 import { alarms, compressors } from "@/db/schema";
 import { conditionKey, parseConditionKey } from "@/shared/alarm-conditions";
 import type { Priority } from "@/shared/alarm-rules";
-import { applyClear, applyRaise, findOpenAlarm, type AlarmTransition, type UnitRef } from "./transitions";
+import { applyClear, applyRaise, findOpenAlarm, type AlarmTransition, type UnitRef } from "./alarm-transitions";
 
 export type ConditionAlarm = {
   compressorId: number;
