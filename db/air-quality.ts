@@ -4,7 +4,6 @@ import type { AirTestDto, CartridgeChangeDto, PurifierRatingInput, SiteAirSettin
 import type { AirStandard, AirTestVerdict } from "@/shared/air-standards";
 import {
   addBucket,
-  DEFAULT_ADVISORY_PCT,
   emptyUsage,
   HOUR_MS,
   type CartridgeRating,

@@ -36,7 +36,6 @@ import {
   applySuppress,
   applyUnshelve,
   applyUnsuppressAll,
-  findOpenAlarm,
   type AlarmTransition,
   type UnitRef,
 } from "./alarm-transitions";

@@ -65,7 +65,6 @@ export type UploadRejection = keyof typeof uploadRejections;
 export function sanitizeFileName(raw: string): { name: string; changed: boolean } {
   const lastSegment = raw.split(/[/\\]/).pop() ?? "";
   // C0/C1 controls, DEL, and the Unicode bidi overrides that can disguise an extension.
-  // eslint-disable-next-line no-control-regex
   let name = lastSegment.normalize("NFC").replace(/[\u0000-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/g, "").trim();
   name = name.replace(/^\.+/, "");
   if (name.length > MAX_ATTACHMENT_NAME) {

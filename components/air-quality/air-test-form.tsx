@@ -38,9 +38,10 @@ export function AirTestForm({ units }: { units: UnitChoice[] }) {
   const [file, setFile] = useState<File | null>(null);
   const [fileKey, setFileKey] = useState(0);
   const first = units[0];
+  const [openedAt] = useState(() => Date.now());
   const initial: V = {
     compressorId: first ? String(first.id) : "",
-    sampledAt: first ? utcToZonedLocal(Date.now(), first.timeZone) : "",
+    sampledAt: first ? utcToZonedLocal(openedAt, first.timeZone) : "",
     samplePoint: "",
     fillBar: "300",
     laboratory: "",

@@ -17,7 +17,8 @@ export function CartridgeChangeForm({ units }: { units: UnitChoice[] }) {
   const [file, setFile] = useState<File | null>(null);
   const [fileKey, setFileKey] = useState(0);
   const first = units[0];
-  const initial: V = { compressorId: first ? String(first.id) : "", changedAt: first ? utcToZonedLocal(Date.now(), first.timeZone) : "", hourMeterH: "", lot: "", note: "" };
+  const [openedAt] = useState(() => Date.now());
+  const initial: V = { compressorId: first ? String(first.id) : "", changedAt: first ? utcToZonedLocal(openedAt, first.timeZone) : "", hourMeterH: "", lot: "", note: "" };
   const unitOf = (v: V) => units.find((u) => String(u.id) === v.compressorId);
   const form = useSchemaForm<V>({
     schema: cartridgeChangeInputSchema,

@@ -4,7 +4,6 @@ import { useId, useState } from "react";
 import { removeServiceTask, saveServiceLead, saveServiceTask } from "@/lib/actions/service";
 import type { ServiceOverviewDto, ServiceTaskDto } from "@/shared/service-schema";
 
-type Plans = ServiceOverviewDto["plans"];
 
 const sourceWords: Record<ServiceTaskDto["source"], string> = { model: "from the model", override: "override", compressor: "this compressor only" };
 const f = "w-full rounded border border-line bg-white px-1 py-0.5 text-sm";

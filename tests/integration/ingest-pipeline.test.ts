@@ -120,7 +120,11 @@ describe("delivery health", () => {
     const barFor = (litres: number) => {
       let lo = 0;
       let hi = 400;
-      for (let i = 0; i < 50; i++) (freeAirLitres(200, (lo + hi) / 2, 20) < litres ? (lo = (lo + hi) / 2) : (hi = (lo + hi) / 2));
+      for (let i = 0; i < 50; i++) {
+        const mid = (lo + hi) / 2;
+        if (freeAirLitres(200, mid, 20) < litres) lo = mid;
+        else hi = mid;
+      }
       return Math.round(lo * 100) / 100;
     };
     const l0 = freeAirLitres(200, 269, 20);

@@ -1,7 +1,7 @@
 import { and, eq } from "drizzle-orm";
 import { afterAll, describe, expect, it } from "vitest";
 import { plannedServiceIntervals } from "@/db/reports";
-import { alarms, auditLog, compressorModels, compressors, compressorState, events, serviceTasks } from "@/db/schema";
+import { alarms, auditLog, compressors, compressorState, events, serviceTasks } from "@/db/schema";
 import { serviceDueList } from "@/db/service";
 import { syncServiceAlarms } from "@/lib/service/alarms";
 import { addServiceWindow, correctServiceEntry, recordServiceLog, saveServiceTask } from "@/lib/service/log";

@@ -8,7 +8,11 @@ import { CompressorModel, type CompressorSpec } from "@/simulator/model/compress
 function barForContent(litres: number): number {
   let lo = 0;
   let hi = 500;
-  for (let i = 0; i < 50; i++) (freeAirLitres(200, (lo + hi) / 2, 20) < litres ? (lo = (lo + hi) / 2) : (hi = (lo + hi) / 2));
+  for (let i = 0; i < 50; i++) {
+        const mid = (lo + hi) / 2;
+        if (freeAirLitres(200, mid, 20) < litres) lo = mid;
+        else hi = mid;
+      }
   return lo;
 }
 
@@ -56,7 +60,11 @@ describe("free air delivered per fill", () => {
     const barAt = (n: number) => {
       let lo = 260;
       let hi = 300;
-      for (let i = 0; i < 40; i++) (mol((lo + hi) / 2) < n ? (lo = (lo + hi) / 2) : (hi = (lo + hi) / 2));
+      for (let i = 0; i < 40; i++) {
+        const mid = (lo + hi) / 2;
+        if (mol(mid) < n) lo = mid;
+        else hi = mid;
+      }
       return lo;
     };
     const pts = Array.from({ length: 361 }, (_, i) => ({ ts: i * 5_000, bar: barAt(mol(260) + ((mol(300) - mol(260)) * i) / 360), c: 20 }));
