@@ -45,6 +45,9 @@ export function listDisplayLinks(db: Db): DisplayLinkDto[] {
       id: displayLinks.id,
       label: displayLinks.label,
       siteIds: displayLinks.siteIds,
+      theme: displayLinks.theme,
+      pressureUnit: displayLinks.pressureUnit,
+      temperatureUnit: displayLinks.temperatureUnit,
       createdByName: users.name,
       createdAt: displayLinks.createdAt,
       revokedAt: displayLinks.revokedAt,
@@ -64,7 +67,7 @@ function getDisplayLink(db: Db, id: number): DisplayLinkDto | null {
 /** Creates a link and returns it with its token (the only time the token exists outside the screen's address bar). */
 export function createDisplayLink(
   db: Db,
-  input: { label: string; siteIds: number[] | null },
+  input: { label: string; siteIds: number[] | null; theme?: Theme; units?: UnitPreference },
   actor: DisplayLinkActor,
   now = Date.now(),
 ): { link: DisplayLinkDto; token: string } {
@@ -81,7 +84,15 @@ export function createDisplayLink(
     const token = newDisplayToken();
     const { id } = db
       .insert(displayLinks)
-      .values({ tokenHash: hashDisplayToken(token), label: input.label, siteIds, createdBy: actor.userId, createdAt: now })
+      .values({
+        tokenHash: hashDisplayToken(token),
+        label: input.label,
+        siteIds,
+        createdBy: actor.userId,
+        createdAt: now,
+        ...(input.theme ? { theme: input.theme } : {}),
+        ...(input.units ? { pressureUnit: input.units.pressureUnit, temperatureUnit: input.units.temperatureUnit } : {}),
+      })
       .returning({ id: displayLinks.id })
       .get();
     writeAudit(
@@ -93,7 +104,7 @@ export function createDisplayLink(
         action: "display_link.create",
         targetType: "display_link",
         targetId: id,
-        details: { label: input.label, siteIds },
+        details: { label: input.label, siteIds, theme: input.theme ?? "dark", units: input.units ?? null },
       },
       now,
     );

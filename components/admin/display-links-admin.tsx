@@ -2,11 +2,12 @@
 
 import { useQuery, useQueryClient } from "@tanstack/react-query";
 import { useRef, useState, type FormEvent } from "react";
-import { buttonClass, CheckboxGroupField, FormAlert, FormPanel, TextField, useSchemaForm } from "@/components/admin/form-kit";
+import { buttonClass, CheckboxGroupField, FormAlert, FormPanel, SelectField, TextField, useSchemaForm } from "@/components/admin/form-kit";
 import { displayLinkQueries } from "@/components/queries/live";
 import type { DisplayLinkDto } from "@/shared/display-link-schema";
 import { createDisplayLinkAction, revokeDisplayLinkAction, type CreatedDisplayLink } from "@/lib/actions/admin-displays";
 import { displayLinkInputSchema, type DisplayLinkInput } from "@/shared/display-link-schema";
+import { pressureLabel, pressureUnits, temperatureLabel, temperatureUnits } from "@/shared/units";
 
 /** "2025-03-14 14:05 UTC": the same on the server and in every browser. */
 function utc(ms: number | null): string {
@@ -117,7 +118,7 @@ export function DisplayLinksAdmin({
   const [creating, setCreating] = useState(false);
   const [created, setCreated] = useState<CreatedDisplayLink | null>(null);
   const [status, setStatus] = useState<string | null>(null);
-  const initial: DisplayLinkInput = { label: "", siteIds: [] };
+  const initial: DisplayLinkInput = { label: "", siteIds: [], theme: "dark", pressureUnit: "bar", temperatureUnit: "C" };
   const form = useSchemaForm<DisplayLinkInput>({ schema: displayLinkInputSchema, initial });
   const refresh = () => client.invalidateQueries({ queryKey: displayLinkQueries.list().queryKey });
 
@@ -160,6 +161,25 @@ export function DisplayLinksAdmin({
               hint={limitedToSites ? "Choose one or more of your sites." : "Leave all unticked to show every site, including sites added later."}
               options={sites}
             />
+            <div className="grid gap-3 sm:grid-cols-3">
+              <SelectField
+                form={form}
+                name="theme"
+                label="Theme"
+                hint="Dark suits a control room at night."
+                options={[
+                  { value: "dark", label: "Dark (control room)" },
+                  { value: "light", label: "Light" },
+                ]}
+              />
+              <SelectField form={form} name="pressureUnit" label="Pressure unit" options={pressureUnits.map((u) => ({ value: u, label: pressureLabel(u) }))} />
+              <SelectField
+                form={form}
+                name="temperatureUnit"
+                label="Temperature unit"
+                options={temperatureUnits.map((u) => ({ value: u, label: temperatureLabel(u) }))}
+              />
+            </div>
             <div className="flex gap-2">
               <button type="submit" className={buttonClass.primary} disabled={form.pending} aria-busy={form.pending || undefined}>
                 {form.pending ? "Creating…" : "Create link"}

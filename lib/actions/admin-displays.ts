@@ -38,7 +38,16 @@ export async function createDisplayLinkAction(input: unknown) {
     }
     const actor = await actorOf(user);
     const { link, token } = refusals(() =>
-      createDisplayLink(getDb(), { label: data.label, siteIds: data.siteIds.length ? data.siteIds : null }, actor),
+      createDisplayLink(
+        getDb(),
+        {
+          label: data.label,
+          siteIds: data.siteIds.length ? data.siteIds : null,
+          theme: data.theme,
+          units: { pressureUnit: data.pressureUnit, temperatureUnit: data.temperatureUnit },
+        },
+        actor,
+      ),
     );
     return { link, url: `${await publicOrigin()}/display/${token}` };
   });

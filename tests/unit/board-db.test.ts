@@ -195,6 +195,12 @@ describe("display links", () => {
     expect(audit.map((a) => a.details).join(" ")).not.toContain(token);
   });
 
+  it("keeps the theme and units an administrator chose for the wall screen", () => {
+    const { token, link } = createDisplayLink(db, { label: "Night shift", siteIds: [], theme: "light", units: { pressureUnit: "psi", temperatureUnit: "F" } }, actor(), NOW);
+    expect(link).toMatchObject({ theme: "light", pressureUnit: "psi", temperatureUnit: "F" });
+    expect(resolveDisplayLink(db, token, NOW)).toMatchObject({ theme: "light", units: { pressureUnit: "psi", temperatureUnit: "F" } });
+  });
+
   it("means every site when no site is chosen", () => {
     const { token } = createDisplayLink(db, { label: "Lobby", siteIds: [] }, actor(), NOW);
     expect(resolveDisplayLink(db, token, NOW)).toMatchObject({ status: "ok", siteIds: null });
