@@ -5,15 +5,15 @@ export const demoOrganisation = "Tidewater Rescue & Dive Group";
 
 export const demoSites = [
   { code: "marrow-bay", name: "Marrow Bay Fire Station", timeZone: "Europe/London", address: "4 Quay Road, Marrow Bay", profile: "fire" },
-  { code: "halden-ridge", name: "Halden Ridge Fire Station", timeZone: "Europe/Oslo", address: "Ridgeveien 12, Halden Ridge", profile: "fire" },
+  { code: "heronfold-ridge", name: "Heronfold Ridge Fire Station", timeZone: "Europe/Oslo", address: "Ridgeveien 12, Heronfold Ridge", profile: "fire" },
   { code: "cobalt-reef", name: "Cobalt Reef Dive Centre", timeZone: "Europe/Malta", address: "Triq il-Blu 7, Cobalt Reef", profile: "dive" },
 ] as const;
 
 export const demoModels = [
-  { name: "Skua 80", maker: "Northwind Compression", stages: 3, ratedDeliveryLpm: 80, ratedPressureBar: 225 },
-  { name: "Petrel 250", maker: "Northwind Compression", stages: 3, ratedDeliveryLpm: 250, ratedPressureBar: 330 },
-  { name: "Gannet 320", maker: "Fjordline Air", stages: 4, ratedDeliveryLpm: 320, ratedPressureBar: 350 },
-  { name: "Fulmar 450", maker: "Fjordline Air", stages: 4, ratedDeliveryLpm: 450, ratedPressureBar: 420 },
+  { name: "Skua 80", maker: "Tarnbeck Compression", stages: 3, ratedDeliveryLpm: 80, ratedPressureBar: 225 },
+  { name: "Petrel 250", maker: "Tarnbeck Compression", stages: 3, ratedDeliveryLpm: 250, ratedPressureBar: 330 },
+  { name: "Gannet 320", maker: "Kelpmoor Air Works", stages: 4, ratedDeliveryLpm: 320, ratedPressureBar: 350 },
+  { name: "Fulmar 450", maker: "Kelpmoor Air Works", stages: 4, ratedDeliveryLpm: 450, ratedPressureBar: 420 },
 ] as const;
 
 type DemoModelName = (typeof demoModels)[number]["name"];
@@ -29,13 +29,13 @@ export const demoCompressors: {
   restartPressureBar: number;
   bankVolumeL: number;
 }[] = [
-  { site: "marrow-bay", model: "Fulmar 450", name: "MB-1 Main", serial: "FJA-450-2019-0412", deviceId: "mb-main", stopPressureBar: 414, restartPressureBar: 370, bankVolumeL: 200 },
-  { site: "marrow-bay", model: "Skua 80", name: "MB-2 Portable", serial: "NWC-080-2022-1177", deviceId: "mb-portable", stopPressureBar: 200, restartPressureBar: 170, bankVolumeL: 50 },
-  { site: "halden-ridge", model: "Gannet 320", name: "HR-1 Bay compressor", serial: "FJA-320-2017-0098", deviceId: "hr-bay", stopPressureBar: 330, restartPressureBar: 295, bankVolumeL: 150 },
-  { site: "halden-ridge", model: "Petrel 250", name: "HR-2 Workshop", serial: "NWC-250-2021-0733", deviceId: "hr-workshop", stopPressureBar: 300, restartPressureBar: 265, bankVolumeL: 100 },
-  { site: "cobalt-reef", model: "Petrel 250", name: "CR-1 Fill station", serial: "NWC-250-2020-0561", deviceId: "cr-fill", stopPressureBar: 300, restartPressureBar: 260, bankVolumeL: 200 },
-  { site: "cobalt-reef", model: "Gannet 320", name: "CR-2 Bank charger", serial: "FJA-320-2023-0214", deviceId: "cr-bank", stopPressureBar: 330, restartPressureBar: 290, bankVolumeL: 300 },
-  { site: "cobalt-reef", model: "Skua 80", name: "CR-3 Boat unit", serial: "NWC-080-2024-1402", deviceId: "cr-boat", stopPressureBar: 200, restartPressureBar: 165, bankVolumeL: 0 },
+  { site: "marrow-bay", model: "Fulmar 450", name: "MB-1 Main", serial: "KAW-450-2019-0412", deviceId: "mb-main", stopPressureBar: 414, restartPressureBar: 370, bankVolumeL: 200 },
+  { site: "marrow-bay", model: "Skua 80", name: "MB-2 Portable", serial: "TBC-080-2022-1177", deviceId: "mb-portable", stopPressureBar: 200, restartPressureBar: 170, bankVolumeL: 50 },
+  { site: "heronfold-ridge", model: "Gannet 320", name: "HR-1 Bay compressor", serial: "KAW-320-2017-0098", deviceId: "hr-bay", stopPressureBar: 330, restartPressureBar: 295, bankVolumeL: 150 },
+  { site: "heronfold-ridge", model: "Petrel 250", name: "HR-2 Workshop", serial: "TBC-250-2021-0733", deviceId: "hr-workshop", stopPressureBar: 300, restartPressureBar: 265, bankVolumeL: 100 },
+  { site: "cobalt-reef", model: "Petrel 250", name: "CR-1 Fill station", serial: "TBC-250-2020-0561", deviceId: "cr-fill", stopPressureBar: 300, restartPressureBar: 260, bankVolumeL: 200 },
+  { site: "cobalt-reef", model: "Gannet 320", name: "CR-2 Bank charger", serial: "KAW-320-2023-0214", deviceId: "cr-bank", stopPressureBar: 330, restartPressureBar: 290, bankVolumeL: 300 },
+  { site: "cobalt-reef", model: "Skua 80", name: "CR-3 Boat unit", serial: "TBC-080-2024-1402", deviceId: "cr-boat", stopPressureBar: 200, restartPressureBar: 165, bankVolumeL: 0 },
 ];
 
 export const DEMO_PASSWORD = "airkeep-demo";

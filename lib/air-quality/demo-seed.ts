@@ -16,7 +16,7 @@ const ratings: Record<string, { kind: "water-g" | "air-m3"; value: number; backP
   "Fulmar 450": { kind: "water-g", value: 600, backPressureBar: 160 },
 };
 
-const siteStandards: Record<string, AirStandard> = { "marrow-bay": "en12021", "halden-ridge": "en12021", "cobalt-reef": "cga-e" };
+const siteStandards: Record<string, AirStandard> = { "marrow-bay": "en12021", "heronfold-ridge": "en12021", "cobalt-reef": "cga-e" };
 
 type DemoTest = { daysAgo: number; coPpm?: number; certificateNo: string };
 /** Last tests per compressor: HR-2 is overdue, CR-1 failed on CO and passed its retest. */

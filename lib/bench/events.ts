@@ -34,10 +34,10 @@ function rng(seed: number) {
 const benchSites = [
   { code: "gull-point", name: "Gull Point Fire Station", timeZone: "Europe/London" },
   { code: "ostre-hamn", name: "Østre Hamn Brannstasjon", timeZone: "Europe/Oslo" },
-  { code: "blue-hole", name: "Blue Hole Dive Centre", timeZone: "Europe/Malta" },
+  { code: "lanternfish", name: "Lanternfish Dive Centre", timeZone: "Europe/Malta" },
   { code: "cape-ember", name: "Cape Ember Rescue", timeZone: "America/Halifax" },
-  { code: "tasman-deep", name: "Tasman Deep Divers", timeZone: "Australia/Hobart" },
-  { code: "kauri-bay", name: "Kauri Bay Fire & Rescue", timeZone: "Pacific/Auckland" },
+  { code: "kelp-deep", name: "Kelp Deep Divers", timeZone: "Australia/Hobart" },
+  { code: "saltmarsh-quay", name: "Saltmarsh Quay Fire & Rescue", timeZone: "Pacific/Auckland" },
   { code: "high-mesa", name: "High Mesa Station 4", timeZone: "America/Denver" },
   { code: "lantern-key", name: "Lantern Key Marine Rescue", timeZone: "Asia/Singapore" },
 ] as const;
@@ -55,7 +55,7 @@ const people = [
   ["Kiri Tane", "kiri.tane@example.org"],
   ["Omar Feld", "omar.feld@example.org"],
   ["Greta Moss", "greta.moss@example.org"],
-  ["Dev Anand", "dev.anand@example.org"],
+  ["Devi Arland", "devi.arland@example.org"],
 ] as const;
 const ackComments = [
   "Checked on site, cooling fan running again",

@@ -83,13 +83,13 @@ test.describe.serial("service", () => {
 
   test("a supervisor of another site cannot download the photo; one of every site can", async ({ page, browser }) => {
     expect(attachmentId).toBeGreaterThan(0);
-    const email = "supervisor.halden@airkeep.demo";
+    const email = "supervisor.heronfold@airkeep.demo";
     const hash = await hashPassword(DEMO_PASSWORD);
     withDb((db) => {
-      const halden = db.select({ id: sites.id }).from(sites).where(eq(sites.code, "halden-ridge")).get()!.id;
+      const heronfold = db.select({ id: sites.id }).from(sites).where(eq(sites.code, "heronfold-ridge")).get()!.id;
       const now = Date.now();
       const u = db.insert(users).values({ email, name: "Hal Supervisor", passwordHash: hash, role: "supervisor", createdAt: now, updatedAt: now }).returning().get();
-      db.insert(userSites).values({ userId: u.id, siteId: halden }).run();
+      db.insert(userSites).values({ userId: u.id, siteId: heronfold }).run();
       expect(db.select().from(attachments).where(eq(attachments.id, attachmentId)).get()?.status).toBe("stored");
     });
     await page.goto("/login");

@@ -256,7 +256,7 @@ describe("alarm rows and event text", () => {
       "HR-1 Bay compressor: final-stage temperature 182.4 °C above warning limit 160 °C",
     );
     const [crit] = listAlarms(db, { siteIds: null });
-    expect(crit).toMatchObject({ title: "Final-stage temperature high", priority: "critical", value: 182.4, limitValue: 180, siteName: "Halden Ridge Fire Station" });
+    expect(crit).toMatchObject({ title: "Final-stage temperature high", priority: "critical", value: 182.4, limitValue: 180, siteName: "Heronfold Ridge Fire Station" });
   });
 
   it("a trip carries the machine's code into the row, the title and the event", () => {

@@ -58,7 +58,7 @@ export function seedFleet(db: Db, limits: readonly Limit[] = modelLimits): Fleet
   const s = db.$client;
   const now = T0 - 86_400_000;
   const site = s.prepare("INSERT INTO sites (name, code, time_zone, created_at) VALUES (?, ?, ?, ?)");
-  const siteA = Number(site.run("Halden Ridge Fire Station", "halden-ridge", "Europe/Oslo", now).lastInsertRowid);
+  const siteA = Number(site.run("Heronfold Ridge Fire Station", "heronfold-ridge", "Europe/Oslo", now).lastInsertRowid);
   const siteB = Number(site.run("Cobalt Reef Dive Centre", "cobalt-reef", "Europe/Malta", now).lastInsertRowid);
   const modelId = Number(
     s

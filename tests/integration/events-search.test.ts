@@ -71,7 +71,7 @@ beforeAll(() => {
   const s = db.$client;
   const site = s.prepare("INSERT INTO sites (name, code, time_zone, created_at) VALUES (?, ?, ?, 0)");
   const siteA = Number(site.run("Marrow Bay", "marrow-bay", "Europe/London").lastInsertRowid);
-  const siteB = Number(site.run("Halden Ridge", "halden-ridge", "Europe/Oslo").lastInsertRowid);
+  const siteB = Number(site.run("Heronfold Ridge", "heronfold-ridge", "Europe/Oslo").lastInsertRowid);
   const siteC = Number(site.run("Cobalt Reef", "cobalt-reef", "Europe/Malta").lastInsertRowid);
   const model = Number(
     s.prepare("INSERT INTO compressor_models (name, stages, rated_delivery_lpm, rated_pressure_bar, created_at) VALUES ('Petrel 250', 3, 250, 330, 0)").run()

@@ -33,7 +33,7 @@ beforeEach(() => {
   runMigrations(db);
   const admin = createUser(db, { email: "root@example.org", name: "Root", role: "admin", passwordHash: "x", allSites: true, siteIds: [] });
   actor = { userId: admin.id, email: admin.email, ip: "127.0.0.1" };
-  site = db.insert(sites).values({ name: "Halden Ridge Fire Station", code: "halden-ridge", timeZone: "Europe/Oslo", createdAt: 0 }).returning().get().id;
+  site = db.insert(sites).values({ name: "Heronfold Ridge Fire Station", code: "heronfold-ridge", timeZone: "Europe/Oslo", createdAt: 0 }).returning().get().id;
 });
 afterEach(() => db.$client.close());
 afterAll(() => tmp.remove());
@@ -104,7 +104,7 @@ describe("audited writes", () => {
   it("an on-call rule keeps no contact", () => {
     const c = adminCreateContact(db, contactInput(), actor);
     adminCreateRule(db, { siteId: site, minPriority: "warning", target: "on-call", contactId: c.id, mode: "chain", position: 0, escalateAfterMin: null, enabled: true }, actor);
-    expect(listRules(db)[0]).toMatchObject({ target: "on-call", contactId: null, siteName: "Halden Ridge Fire Station" });
+    expect(listRules(db)[0]).toMatchObject({ target: "on-call", contactId: null, siteName: "Heronfold Ridge Fire Station" });
   });
 });
 

@@ -66,7 +66,7 @@ export function openWorld(file: string, now: number): World {
   const db = openDatabase(file);
   runMigrations(db);
   const london = db.insert(sites).values({ name: "Marrow Bay Fire Station", code: "marrow-bay", timeZone: "Europe/London", createdAt: now }).returning().get().id;
-  const oslo = db.insert(sites).values({ name: "Halden Ridge Fire Station", code: "halden-ridge", timeZone: "Europe/Oslo", createdAt: now }).returning().get().id;
+  const oslo = db.insert(sites).values({ name: "Heronfold Ridge Fire Station", code: "heronfold-ridge", timeZone: "Europe/Oslo", createdAt: now }).returning().get().id;
   const model = db
     .insert(compressorModels)
     .values({ name: "Fulmar 450", stages: 4, ratedDeliveryLpm: 450, ratedPressureBar: 420, createdAt: now })

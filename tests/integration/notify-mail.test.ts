@@ -220,7 +220,7 @@ describe("escalation", () => {
     expect(notifyTick(w.db, cfg, t0).queued).toBe(0);
     const e = w.db.select().from(events).where(eq(events.action, "mail.no_recipient")).all();
     expect(e).toHaveLength(1);
-    expect(e[0]!.text).toContain("Halden Ridge Fire Station");
+    expect(e[0]!.text).toContain("Heronfold Ridge Fire Station");
   });
 });
 
@@ -333,7 +333,7 @@ describe("digest", () => {
     expect(outbox().filter((o) => o.kind === "digest-resolved").map((o) => o.toAddress).sort()).toEqual(["oda@airkeep.demo", "sebastian@airkeep.demo"]);
 
     await sender.runOnce();
-    const digest = received().find((m) => m.subject === "[Critical] 7 alarms at Halden Ridge Fire Station (many alarms in 10 min)");
+    const digest = received().find((m) => m.subject === "[Critical] 7 alarms at Heronfold Ridge Fire Station (many alarms in 10 min)");
     expect(digest).toBeDefined();
     for (const id of burst) expect(digest!.text).toContain(`alarms?id=${id}`);
     expect(digest!.text).toContain(cautions.hotStage);
@@ -342,7 +342,7 @@ describe("digest", () => {
   });
 
   it("alarms that notify nobody neither open a digest nor hold a critical alarm back", async () => {
-    // Halden Ridge has no rule for advisory alarms: a burst of them reaches nobody and is no storm.
+    // Heronfold Ridge has no rule for advisory alarms: a burst of them reaches nobody and is no storm.
     const quiet = Array.from({ length: 7 }, (_, i) =>
       raiseAlarm(w.db, { compressorId: w.hr1, siteId: w.oslo, raisedAt: t0 + i * 1000, priority: "advisory", key: `adv.${i}`, signal: "intakeC" }),
     );
@@ -356,6 +356,6 @@ describe("digest", () => {
     notifyTick(w.db, cfg, t0 + 21_000);
     expect(outbox().filter((o) => o.alarmId === critical).map((o) => [o.kind, o.toAddress])).toEqual([["raise", "oda@airkeep.demo"]]);
     await sender.runOnce();
-    expect(receivedBy("oda@airkeep.demo").map((m) => m.subject)).toEqual(["[Critical] HR-1 Bay compressor, Halden Ridge Fire Station: Final-stage temperature high"]);
+    expect(receivedBy("oda@airkeep.demo").map((m) => m.subject)).toEqual(["[Critical] HR-1 Bay compressor, Heronfold Ridge Fire Station: Final-stage temperature high"]);
   });
 });

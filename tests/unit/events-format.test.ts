@@ -116,7 +116,7 @@ describe("CSV writer against RFC 4180 (IETF, 2005), section 2", () => {
       action: "alarm.acknowledge",
       priority: "warning",
       siteId: 1,
-      siteName: "Halden Ridge",
+      siteName: "Heronfold Ridge",
       timeZone: "Europe/Oslo",
       compressorId: 3,
       compressorName: "HR-1 Bay compressor",
@@ -129,7 +129,7 @@ describe("CSV writer against RFC 4180 (IETF, 2005), section 2", () => {
     expect(row).toEqual([
       "2025-07-01T14:00:00.250+02:00",
       "Europe/Oslo",
-      "Halden Ridge",
+      "Heronfold Ridge",
       "HR-1 Bay compressor",
       "warning",
       "acknowledge",
@@ -201,7 +201,7 @@ describe("times in a site's zone", () => {
 describe("event log URL parameters", () => {
   const sites = [
     { id: 1, name: "Marrow Bay", timeZone: "Europe/London" },
-    { id: 2, name: "Halden Ridge", timeZone: "Europe/Oslo" },
+    { id: 2, name: "Heronfold Ridge", timeZone: "Europe/Oslo" },
     { id: 3, name: "Cobalt Reef", timeZone: "Europe/Malta" },
   ];
 
@@ -222,7 +222,7 @@ describe("event log URL parameters", () => {
     expect(effectiveZone({ tz: "Asia/Tokyo" }, sites)).toBe("Europe/Malta"); // not a zone of theirs: the first by site name
     expect(effectiveZone({}, [])).toBe("UTC");
     expect(zoneChoices([...sites, { id: 4, name: "Aker Quay", timeZone: "Europe/Oslo" }]).map((z) => z.label)).toEqual([
-      "Europe/Oslo (Aker Quay, Halden Ridge)",
+      "Europe/Oslo (Aker Quay, Heronfold Ridge)",
       "Europe/Malta (Cobalt Reef)",
       "Europe/London (Marrow Bay)",
     ]);

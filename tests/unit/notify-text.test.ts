@@ -22,7 +22,7 @@ const alarm = (a: Partial<NoticeAlarm> = {}): NoticeAlarm => ({
   signal: "oilBar",
   title: "Oil pressure low",
   compressorName: "HR-2 Workshop",
-  siteName: "Halden Ridge Fire Station",
+  siteName: "Heronfold Ridge Fire Station",
   timeZone: "Europe/Oslo",
   state: "active-unacknowledged",
   active: true,
@@ -66,7 +66,7 @@ describe("formatting", () => {
 describe("an alarm e-mail", () => {
   it("says what, where, value against limit with units, the reading's age, the link and the safety notice", () => {
     const m = composeAlarmMail("raise", alarm(), ctx);
-    expect(m.subject).toBe("[Warning] HR-2 Workshop, Halden Ridge Fire Station: Oil pressure low");
+    expect(m.subject).toBe("[Warning] HR-2 Workshop, Heronfold Ridge Fire Station: Oil pressure low");
     expect(m.text).toContain("Value:         1.2 bar, below the warning limit of 1.5 bar");
     expect(m.text).toContain("Reading taken: 2025-01-15 12:58:30 CET, 1 min 30 s before this message was written");
     expect(m.text).toContain("https://airkeep.example.org/alarms?id=41");
@@ -94,7 +94,7 @@ describe("an alarm e-mail", () => {
     const comms = composeAlarmMail("raise", alarm({ key: "comms", signal: null, value: null, limitValue: null, title: "Communication lost" }), ctx);
     expect(comms.text).toContain("Lost at:");
     const cleared = composeAlarmMail("resolved", alarm({ active: false, state: "cleared-unacknowledged", clearedAt: now - 1000 }), ctx);
-    expect(cleared.subject).toBe("[Cleared] Warning HR-2 Workshop, Halden Ridge Fire Station: Oil pressure low");
+    expect(cleared.subject).toBe("[Cleared] Warning HR-2 Workshop, Heronfold Ridge Fire Station: Oil pressure low");
     expect(cleared.text).toContain("still needs acknowledging");
     expect(cleared.text).toContain(SAFETY_NOTICE);
   });
@@ -102,10 +102,10 @@ describe("an alarm e-mail", () => {
   it("digests list every alarm with its link, and carry the notice", () => {
     const d = composeDigestMail(
       "digest",
-      { siteId: 3, siteName: "Halden Ridge Fire Station", timeZone: "Europe/Oslo", windowMin: 10, alarms: [alarm(), alarm({ id: 42, priority: "critical" })], alreadySent: [] },
+      { siteId: 3, siteName: "Heronfold Ridge Fire Station", timeZone: "Europe/Oslo", windowMin: 10, alarms: [alarm(), alarm({ id: 42, priority: "critical" })], alreadySent: [] },
       ctx,
     );
-    expect(d.subject).toBe("[Critical] 2 alarms at Halden Ridge Fire Station (many alarms in 10 min)");
+    expect(d.subject).toBe("[Critical] 2 alarms at Heronfold Ridge Fire Station (many alarms in 10 min)");
     expect(d.text.indexOf("alarms?id=42")).toBeLessThan(d.text.indexOf("alarms?id=41")); // most urgent first
     expect(d.text).toContain("https://airkeep.example.org/alarms?site=3");
     expect(d.text).toContain(SAFETY_NOTICE);
