@@ -73,6 +73,8 @@ export function readingRow(compressorId: number, r: ModelReading, seq: number, t
     stage4C: sc[3] ?? null,
     oilBar: r.oilBar,
     purifierC: r.purifierC,
+    // The simulated purifier sends no pressure of its own: cartridge life falls back to delivery pressure.
+    purifierBar: null,
     intakeC: r.intakeC,
     runState: runStateCode[r.runState],
     motorOn: r.motorOn ? 1 : 0,

@@ -47,7 +47,7 @@ beforeAll(async () => {
   // The hub opens a socket only for a live account and sign-in session, or an unrevoked display link.
   const now = Date.now();
   t.db.$client
-    .prepare("INSERT INTO users (id, email, name, password_hash, role, created_at, updated_at) VALUES (1, 'ana@airkeep.demo', 'Ana', '-', 'viewer', ?, ?)")
+    .prepare("INSERT INTO users (id, email, name, password_hash, role, all_sites, created_at, updated_at) VALUES (1, 'ana@airkeep.demo', 'Ana', '-', 'viewer', 1, ?, ?)")
     .run(now, now);
   t.db.$client.prepare("INSERT INTO user_sessions (id, user_id, created_at, last_seen_at) VALUES ('s-ana', 1, ?, ?)").run(now, now);
   t.db.$client
@@ -350,16 +350,16 @@ describe("comms, events and fill rate", () => {
     const d = dev.get("hp-9")!;
     const c = await device("hp-9");
     const start = Date.now() - 70_000;
-    // 0.25 bar/s = 15 bar/min
+    // 0.25 bar/s = 15 bar/min; seq carries on above the delivery-health test's readings from this unit (the sequence rule)
     const send = async (i: number) =>
-      c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 1_000, seq: 100 + i, deliveryBar: 200 + i * 0.25 })), { qos: 1 });
+      c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + i * 1_000, seq: 10_000 + i, deliveryBar: 200 + i * 0.25 })), { qos: 1 });
     for (let i = 0; i <= 30; i++) await send(i);
     await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 30_000, 3_000, "half a minute");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeNull();
     for (let i = 31; i <= 60; i++) await send(i);
     await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 60_000, 3_000, "a minute");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeCloseTo(15, 6);
-    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + 61_000, seq: 161, runState: "standby", motorOn: false })), { qos: 1 });
+    await c.publishAsync(topicOf(d), JSON.stringify(telemetry({ ts: start + 61_000, seq: 10_061, runState: "standby", motorOn: false })), { qos: 1 });
     await waitFor(() => getCompressorState(t.db, d.compressorId)?.ts === start + 61_000, 3_000, "standby reading");
     expect(getCompressorState(t.db, d.compressorId)?.fillRateBarPerMin).toBeNull();
   });

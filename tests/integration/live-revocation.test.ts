@@ -215,6 +215,7 @@ describe("live hub session limits and site scope at each ping", () => {
   it("stops another site's values within one ping of the person's sites being narrowed, and widens again", async () => {
     const finn = addUser("finn@airkeep.demo");
     createSession(db, { id: "finn", userId: finn, ip: "127.0.0.1" });
+    sql("UPDATE users SET all_sites = 0 WHERE id = ?", finn);
     sql("INSERT INTO user_sites (user_id, site_id) VALUES (?, ?), (?, ?)", finn, site.north, finn, site.south);
     // The token still names both sites when it is used; the hub goes by the account from now on.
     const s = connect({ userId: finn, sessionId: "finn" }, [site.north, site.south]);
@@ -241,8 +242,8 @@ describe("live hub session limits and site scope at each ping", () => {
     expect(updatesFor(s.messages, compressor.south)).toBe(1);
     expect(s.ws.readyState).toBe(WebSocket.OPEN);
 
-    // Removing the last limit means every site again (as for the web pages).
-    sql("DELETE FROM user_sites WHERE user_id = ?", finn);
+    // Marking the account every-site widens it again (as for the web pages).
+    sql("UPDATE users SET all_sites = 1 WHERE id = ?", finn);
     const wide = await waitFor(() => s.messages.filter((m) => m.type === "snapshot")[2], 2_000, "snapshot in the widened scope");
     expect(snapshotIds(wide)).toEqual([compressor.north, compressor.south].sort());
     s.ws.close();

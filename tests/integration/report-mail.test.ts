@@ -21,11 +21,12 @@ beforeAll(() => {
   s.prepare(
     "INSERT INTO compressors (id, site_id, model_id, name, serial, device_id, stop_pressure_bar, restart_pressure_bar, created_at, updated_at) VALUES (1, 1, 1, 'K-1', 'S1', 'k1', 300, 270, 0, 0), (2, 2, 1, 'C-1', 'S2', 'c1', 300, 270, 0, 0)",
   ).run();
-  const u = s.prepare("INSERT INTO users (id, email, name, password_hash, role, disabled, created_at, updated_at) VALUES (?, ?, ?, 'x', ?, ?, 0, 0)");
-  u.run(1, "maya@example.test", "Maya", "manager", 0); // every site
-  u.run(2, "kai@example.test", "Kai", "manager", 0); // only site 1
-  u.run(3, "old@example.test", "Old", "manager", 1); // disabled
-  u.run(4, "eve@example.test", "Eve", "engineer", 0); // not a manager
+  const u = s.prepare("INSERT INTO users (id, email, name, password_hash, role, disabled, all_sites, created_at, updated_at) VALUES (?, ?, ?, 'x', ?, ?, ?, 0, 0)");
+  u.run(1, "maya@example.test", "Maya", "manager", 0, 1); // every site
+  u.run(2, "kai@example.test", "Kai", "manager", 0, 0); // only site 1
+  u.run(3, "old@example.test", "Old", "manager", 1, 1); // disabled
+  u.run(4, "eve@example.test", "Eve", "engineer", 0, 1); // not a manager
+  u.run(5, "nil@example.test", "Nil", "manager", 0, 0); // limited to no site at all: gets none
   s.prepare("INSERT INTO user_sites (user_id, site_id) VALUES (2, 1)").run();
 });
 

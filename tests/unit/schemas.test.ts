@@ -53,7 +53,7 @@ describe("shared form schemas", () => {
 
   it("normalises e-mail addresses and requires a long enough password on invite", () => {
     expect(signInSchema.parse({ email: " Admin@Example.ORG ", password: "x" }).email).toBe("admin@example.org");
-    const invite = { email: "a@b.org", name: "A", role: "viewer", siteIds: [], password: "short" };
+    const invite = { email: "a@b.org", name: "A", role: "viewer", allSites: true, siteIds: [], password: "short" };
     expect(fieldErrors(userInviteSchema.safeParse(invite))).toEqual(["password"]);
     expect(fieldErrors(userInviteSchema.safeParse({ ...invite, password: "long-enough-1", role: "root" }))).toEqual(["role"]);
   });
@@ -61,9 +61,11 @@ describe("shared form schemas", () => {
 
 describe("administrators' site scope", () => {
   it("is always every site: an admin with a site list is refused at the site field", () => {
-    const invite = { email: "a@b.org", name: "A", role: "admin", siteIds: [2], password: "long-enough-1" };
+    const invite = { email: "a@b.org", name: "A", role: "admin", allSites: false, siteIds: [2], password: "long-enough-1" };
     expect(fieldErrors(userInviteSchema.safeParse(invite))).toEqual(["siteIds"]);
     expect(userInviteSchema.safeParse({ ...invite, siteIds: [] }).success).toBe(true);
     expect(userInviteSchema.safeParse({ ...invite, role: "technician" }).success).toBe(true);
+    // Anyone else must choose: some sites, or every site; an empty list alone is refused.
+    expect(fieldErrors(userInviteSchema.safeParse({ ...invite, role: "technician", siteIds: [] }))).toEqual(["siteIds"]);
   });
 });
