@@ -148,7 +148,7 @@ export function Board({ source, title, theme: linkTheme }: { source: BoardSource
   // On a wall (the kiosk, or the board in full screen) everything fits one screen, stays awake and shows the notice.
   const wall = kiosk || fullscreen.active;
   const wakeLock = useWakeLock(wall);
-  const fitted = useFitFont(fitRef, wall && !linkGone && !revoked, `${board.data?.compressors.length ?? 0}:${board.data?.sites.length ?? 0}`);
+  const fitted = useFitFont(fitRef, wall && !linkGone && !revoked, `${board.data?.compressors.length ?? 0}:${board.data?.sites.length ?? 0}`, '[data-testid="compressor-tile"]');
   if (linkGone || revoked) return <DisplayRevoked />;
 
   return (

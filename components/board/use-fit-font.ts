@@ -9,7 +9,7 @@ const MIN_PX = 8;
  * every compressor at once, as large as the screen allows. `key` changes when what is shown changes (e.g. the
  * number of tiles). Null while not fitting.
  */
-export function useFitFont(ref: RefObject<HTMLElement | null>, enabled: boolean, key: string): number | null {
+export function useFitFont(ref: RefObject<HTMLElement | null>, enabled: boolean, key: string, itemSelector?: string): number | null {
   const [size, setSize] = useState<number | null>(null);
   useLayoutEffect(() => {
     const el = ref.current;
@@ -23,7 +23,12 @@ export function useFitFont(ref: RefObject<HTMLElement | null>, enabled: boolean,
       let hi = Math.max(MIN_PX, Math.floor(window.innerWidth / 50));
       const fits = (px: number) => {
         el.style.fontSize = `${px}px`;
-        return el.scrollHeight <= el.clientHeight + 1 && el.scrollWidth <= el.clientWidth + 1;
+        if (el.scrollHeight > el.clientHeight + 1 || el.scrollWidth > el.clientWidth + 1) return false;
+        // Each item's own content must fit it too (a narrow column can squeeze a tile below its text).
+        for (const item of itemSelector ? el.querySelectorAll<HTMLElement>(itemSelector) : []) {
+          if (item.scrollWidth > item.clientWidth + 1 || item.scrollHeight > item.clientHeight + 1) return false;
+        }
+        return true;
       };
       if (fits(hi)) lo = hi;
       else {
@@ -40,6 +45,6 @@ export function useFitFont(ref: RefObject<HTMLElement | null>, enabled: boolean,
     const observer = new ResizeObserver(() => fit());
     observer.observe(document.documentElement);
     return () => observer.disconnect();
-  }, [ref, enabled, key]);
+  }, [ref, enabled, key, itemSelector]);
   return size;
 }

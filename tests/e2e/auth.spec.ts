@@ -8,7 +8,7 @@ const allNav = ["Board", "Alarms", "Events", "Thresholds", "Service", "Air quali
 // What each role is meant to reach, written out here so the permission table itself is under test.
 const expectedNav: Record<Role, string[]> = {
   viewer: ["Board", "Alarms", "Events"],
-  supervisor: ["Board", "Alarms", "Events", "Air quality"],
+  supervisor: ["Board", "Alarms", "Events", "Service", "Air quality"],
   technician: ["Board", "Alarms", "Events", "Thresholds", "Service", "Air quality"],
   engineer: ["Board", "Alarms", "Events", "Thresholds", "Service", "Air quality", "Reports"],
   manager: ["Board", "Alarms", "Events", "Service", "Air quality", "Reports"],

@@ -147,7 +147,7 @@ test("a compressor whose device drops off turns Offline and its numbers are no l
 test("a tile opens the compressor page with its live values and trend", async ({ page }) => {
   const d = device("mb-main");
   await signIn(page, "technician");
-  await tileOf(page, d).getByRole("link", { name: d.name }).click();
+  await tileOf(page, d).getByRole("link", { name: d.name, exact: true }).click();
   await expect(page).toHaveURL(new RegExp(`/compressors/${d.compressorId}$`));
   await expect(page.getByTestId("compressor-name")).toHaveText(d.name);
   await expect(page.getByTestId("trend-source")).toContainText("raw readings");

@@ -87,7 +87,7 @@ test("below 640 px the alarm list is cards, and the board and a compressor page 
   const [a, b] = [await first.boundingBox(), await second.boundingBox()];
   expect(b!.y).toBeGreaterThanOrEqual(a!.y + a!.height - 1); // stacked, one per row
 
-  await first.click();
+  await first.getByRole("heading", { level: 3 }).getByRole("link").tap();
   await expect(page).toHaveURL(/\/compressors\/\d+/);
   await noSidewaysScroll(page);
 });
