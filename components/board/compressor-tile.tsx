@@ -86,7 +86,8 @@ export const CompressorTile = memo(function CompressorTile({
       } ${condition.word === "Tripped" ? "border-critical ring-[0.12em] ring-critical" : ""}`}
     >
       <header className="flex items-start justify-between gap-[0.5em]">
-        <div className="min-w-0">
+        {/* The name keeps at least half the width, so badges never squeeze it away. */}
+        <div className="min-w-[50%] flex-1">
           <h3 id={titleId} className="truncate text-[1.15em] font-semibold leading-tight">
             {linkable ? (
               <Link href={`/compressors/${c.id}`} className="text-ink no-underline hover:underline">
@@ -107,7 +108,7 @@ export const CompressorTile = memo(function CompressorTile({
             </p>
           )}
         </div>
-        <div className="flex h-[1.6em] min-w-[1.6em] shrink-0 items-center gap-[0.25em]" data-testid="alarm-slot">
+        <div className="flex h-[1.6em] min-w-[1.6em] shrink items-center justify-end gap-[0.25em] overflow-hidden" data-testid="alarm-slot">
           <ServiceBadge badge={c.service} label={c.name} href={linkable ? `/service?compressor=${c.id}` : undefined} />
           <AlarmBadges counts={alarms} label={c.name} href={linkable ? `/alarms?compressor=${c.id}` : undefined} />
         </div>

@@ -60,7 +60,7 @@ test("technician: a failing test raises the critical alarm on the board; a passi
 
   await expect.poll(() => boardCriticalCount(page), { timeout: 30_000 }).toBe(before + 1);
   await page.goto("/alarms");
-  await expect(page.getByText(/Air test failed/).first()).toBeVisible();
+  await expect(page.getByTestId("alarm-row").filter({ hasText: /Air test failed/ }).first()).toBeVisible();
 
   await page.goto("/air-quality");
   const retest = await fillTest(page, "E2E-PASS", "1", { name: "retest.pdf", mimeType: "application/pdf", buffer: PDF });
